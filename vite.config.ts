@@ -1,0 +1,24 @@
+import { fileURLToPath, URL } from "node:url";
+import react from "@vitejs/plugin-react";
+import tailwindcss from "@tailwindcss/vite";
+import { defineConfig } from "vite";
+
+const apiPort = Number(process.env.PORT ?? 3000);
+
+export default defineConfig({
+  plugins: [react(), tailwindcss()],
+  resolve: {
+    alias: {
+      "@": fileURLToPath(new URL("./src", import.meta.url)),
+      "@shared": fileURLToPath(new URL("./shared", import.meta.url)),
+    },
+  },
+  server: {
+    port: 5173,
+    proxy: { "/api": `http://127.0.0.1:${apiPort}` },
+  },
+  build: {
+    outDir: "dist",
+    chunkSizeWarningLimit: 900,
+  },
+});
