@@ -8,6 +8,13 @@ import { HttpError } from "./http-error";
 import { originCheck } from "./middleware/origin-check";
 import { sessionMiddleware } from "./middleware/session";
 import { healthRouter } from "./routes/health";
+import { auditRouter } from "./routes/audit";
+import { authRouter } from "./routes/auth";
+import { invitationsRouter } from "./routes/invitations";
+import { labsRouter } from "./routes/labs";
+import { meRouter } from "./routes/me";
+import { outboxRouter } from "./routes/outbox";
+import { setupRouter } from "./routes/setup";
 
 /** Builds the Express app without listening (tests import it with an in-memory database). */
 export function createApp(deps: AppDeps): express.Express {
@@ -27,6 +34,13 @@ export function createApp(deps: AppDeps): express.Express {
 
   app.use("/api", healthRouter());
   // Feature routers, one line each (keep this list in the order of the API reference in DEVELOPERS.md).
+  app.use("/api", setupRouter(ctx));
+  app.use("/api", authRouter(ctx));
+  app.use("/api", meRouter(ctx));
+  app.use("/api", labsRouter(ctx));
+  app.use("/api", invitationsRouter(ctx));
+  app.use("/api", auditRouter(ctx));
+  app.use("/api", outboxRouter(ctx));
 
   app.use("/api", () => {
     throw new HttpError(404, "NOT_FOUND", "No such API route");

@@ -35,6 +35,9 @@ export type Invitation = z.infer<typeof InvitationSchema>;
 
 export const InvitationTokenParams = z.object({ token: z.string().min(20).max(200) });
 
+export const InvitationParams = LabParams.extend({ invitationId: z.string().min(1).max(64) });
+export type InvitationParams = z.infer<typeof InvitationParams>;
+
 /** GET /api/invitations/:token: what the invitee sees before accepting. */
 export const InvitationPreviewSchema = z.object({
   labName: z.string(),

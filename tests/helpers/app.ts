@@ -122,3 +122,29 @@ export async function seedRoles(t: TestApp) {
     },
   };
 }
+
+/** The `auth_session=…` pair a response sets (undefined when it sets none); usable as a Cookie header. */
+export function sessionCookie(res: { headers: Record<string, unknown> }): string | undefined {
+  const raw = res.headers["set-cookie"];
+  const list = Array.isArray(raw) ? (raw as string[]) : typeof raw === "string" ? [raw] : [];
+  const cookie = list.filter((c) => c.startsWith("auth_session=")).at(-1);
+  return cookie?.split(";")[0];
+}
+
+/** The full Set-Cookie line for the session cookie (with its attributes). */
+export function sessionSetCookie(res: { headers: Record<string, unknown> }): string | undefined {
+  const raw = res.headers["set-cookie"];
+  const list = Array.isArray(raw) ? (raw as string[]) : typeof raw === "string" ? [raw] : [];
+  return list.filter((c) => c.startsWith("auth_session=")).at(-1);
+}
+
+/** Polls `check` until it returns a value other than undefined (for work that finishes after the response). */
+export async function waitFor<T>(check: () => T | undefined, timeoutMs = 5000): Promise<T> {
+  const start = Date.now();
+  for (;;) {
+    const value = check();
+    if (value !== undefined) return value;
+    if (Date.now() - start > timeoutMs) throw new Error(`waitFor: nothing after ${timeoutMs} ms`);
+    await new Promise((r) => setTimeout(r, 20));
+  }
+}
