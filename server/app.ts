@@ -15,6 +15,8 @@ import { labsRouter } from "./routes/labs";
 import { meRouter } from "./routes/me";
 import { outboxRouter } from "./routes/outbox";
 import { setupRouter } from "./routes/setup";
+import { compareRouter } from "./routes/compare";
+import { comparisonsRouter } from "./routes/comparisons";
 
 /** Builds the Express app without listening (tests import it with an in-memory database). */
 export function createApp(deps: AppDeps): express.Express {
@@ -41,6 +43,8 @@ export function createApp(deps: AppDeps): express.Express {
   app.use("/api", invitationsRouter(ctx));
   app.use("/api", auditRouter(ctx));
   app.use("/api", outboxRouter(ctx));
+  app.use("/api", compareRouter(ctx));
+  app.use("/api", comparisonsRouter(ctx));
 
   app.use("/api", () => {
     throw new HttpError(404, "NOT_FOUND", "No such API route");
