@@ -1,0 +1,642 @@
+/*
+ * Weighted nonlinear least squares: minimise χ²(p) = Σ ((y_i − f(x_i; p)) / σ_i)² over the free
+ * parameters, within bounds, on ml-levenberg-marquardt 5.1.0, with our own convergence test,
+ * covariance, standard errors, correlation matrix and information criteria.
+ *
+ * How the package is used, and why (read from its source, node_modules/ml-levenberg-marquardt/src):
+ * - Its `weights` option w_i enters the objective as Σ (y − f)² · w_i² (error_calculation.ts divides by
+ *   weightSquare = 1/w²), so w = 1/σ gives χ². But its step (step.ts) builds Jᵀ·diag(weightSquare)·J and
+ *   Jᵀ·diag(weightSquare)·r, i.e. it weights the step by σ² instead of 1/σ². Objective and step disagree
+ *   whenever the σ_i differ, and on a test line with σ = 0.1 and 10 it never improved on its start.
+ *   We therefore never pass `weights`: the package sees whitened data ỹ_i = y_i/σ_i and a whitened model
+ *   f(x_i; p)/σ_i with unit weights, for which objective and step are both exactly χ².
+ * - Its damping is λ·I (not Marquardt's λ·diag(JᵀJ)), so it depends on parameter units. We hand it
+ *   scaled parameters u_j = p_j·D_j with D_j the norm of the whitened Jacobian column (the MINPACK
+ *   scaling, Moré 1978, updated as a running maximum), which makes λ·I act like λ·diag(JᵀJ).
+ * - It always takes its step (no rejection; it only remembers the best point), stops only at
+ *   maxIterations or when χ² ≤ errorTolerance (absolute), and reports neither convergence nor
+ *   covariance. We run it in short bursts and, between bursts, take Gauss–Newton steps of our own with
+ *   backtracking; the Gauss–Newton predicted decrease gᵀ(JᵀJ)⁻¹g (g = Jᵀr, whitened) is our convergence
+ *   test: it is exactly χ²(p) − χ²_min for a linear model, so "predicted decrease ≤ tol·χ²" says χ² is
+ *   at its minimum to a relative tol, and the parameters are within √(tol·dof) standard errors of it.
+ * - It receives our own Jacobian (analytic when the model gives one, else central differences with
+ *   step ε^(1/3)·|p|), never its default coarse forward difference (fixed step 0.1).
+ *
+ * Covariance at the solution: C = (JᵀWJ)⁻¹ with W = diag(1/σ²) ("unscaled", right when σ are true
+ * standard uncertainties) and s²·C with s² = χ²/(N − k) ("scaled", the usual choice when σ are only
+ * relative). It is formed from the SVD of the whitened, column-normalised Jacobian (ml-matrix), which
+ * avoids squaring the condition number; a numerically rank-deficient Jacobian (smallest/largest
+ * singular value < 1e-12) gives covariance null: the free parameters cannot be separated by the data.
+ * See Press et al., Numerical Recipes 3rd ed., §15.4–15.5; Bevington & Robinson, Data Reduction and
+ * Error Analysis, 3rd ed., ch. 8.
+ *
+ * Fixed parameters are held at their value: their stdErrors are null (not estimated), their rows and
+ * columns of the covariance matrices are 0 and of the correlation matrix null.
+ */
+import { levenbergMarquardt } from "ml-levenberg-marquardt";
+import { Matrix, SingularValueDecomposition } from "ml-matrix";
+import { choleskySolve } from "@shared/fitting/small-linear-algebra";
+
+/** y = f(x; p) for the full parameter vector p (fixed ones included). */
+export type ModelFunction = (params: readonly number[], x: number) => number;
+/** ∂f/∂p_j at x for every parameter of the full vector p, same order as p. */
+export type ModelJacobian = (params: readonly number[], x: number) => ArrayLike<number>;
+
+export interface LeastSquaresData {
+  x: readonly number[];
+  y: readonly number[];
+  /** Standard uncertainty of each y (same unit as y), or null for unit uncertainties (χ² is then the plain sum of squares). */
+  sigma: readonly number[] | null;
+}
+
+export interface LeastSquaresOptions {
+  /** Start values of every parameter; fixed parameters are held at these values. */
+  initialValues: readonly number[];
+  /** Lower bounds, one per parameter (may be -Infinity). */
+  lowerBounds?: readonly number[];
+  /** Upper bounds, one per parameter (may be Infinity). */
+  upperBounds?: readonly number[];
+  /** true where a parameter is held fixed. */
+  fixed?: readonly boolean[];
+  /** Analytic Jacobian of the model; without it, central differences are used. */
+  jacobianFunction?: ModelJacobian;
+  /** Cap on iterations (package iterations plus our own Gauss–Newton steps). */
+  maxIterations?: number;
+  /** Converged when the Gauss–Newton predicted decrease of χ² is ≤ this fraction of χ². */
+  chiSquareTolerance?: number;
+}
+
+export type StopReason =
+  /** the Gauss–Newton predicted decrease of χ² fell below chiSquareTolerance·χ² */
+  | "chi-square-stationary"
+  /** χ² reached zero to rounding: the model passes through every point */
+  | "exact-fit"
+  /** every parameter is fixed; nothing was fitted */
+  | "no-free-parameters"
+  /** not converged: the iteration cap was reached */
+  | "max-iterations"
+  /** not converged: neither the package nor our own steps could lower χ² any further */
+  | "no-progress";
+
+export interface LeastSquaresResult {
+  /** Fitted values of every parameter (fixed ones at their held value). */
+  params: number[];
+  /** √diag(s²·C): standard errors scaled by the reduced χ²; null for fixed parameters or when covariance is null. */
+  stdErrors: (number | null)[];
+  /** √diag(C): standard errors taking σ as absolute; null for fixed parameters or when covariance is null. */
+  stdErrorsUnscaled: (number | null)[];
+  /** s²·(JᵀWJ)⁻¹ over all parameters (fixed rows/columns 0); null when JᵀWJ is singular. */
+  covariance: number[][] | null;
+  /** (JᵀWJ)⁻¹ over all parameters (fixed rows/columns 0); null when JᵀWJ is singular. */
+  covarianceUnscaled: number[][] | null;
+  /** C_ij/√(C_ii C_jj); null entries for fixed parameters; null when covariance is null. */
+  correlation: (number | null)[][] | null;
+  chiSquare: number;
+  /** χ²/dof. */
+  reducedChiSquare: number;
+  /** N − k, k = number of free parameters. */
+  dof: number;
+  /** Akaike information criterion; see informationCriteria for the form used. */
+  aic: number;
+  /** Bayesian (Schwarz) information criterion; see informationCriteria for the form used. */
+  bic: number;
+  /**
+   * "known-sigma": AIC = χ² + 2k, BIC = χ² + k·ln N (Gaussian errors with the given σ; −2 ln L up to a
+   * constant). "estimated-sigma" (sigma null): AIC = N·ln(χ²/N) + 2(k+1), BIC = N·ln(χ²/N) + (k+1)·ln N,
+   * the variance counted as one more parameter. Burnham & Anderson, Model Selection and Multimodel
+   * Inference, 2nd ed. (2002), §2.2 and §6.4; Schwarz, Ann. Statist. 6 (1978) 461.
+   */
+  informationCriteria: "known-sigma" | "estimated-sigma";
+  /** Package iterations plus our own Gauss–Newton steps. */
+  iterations: number;
+  converged: boolean;
+  stopReason: StopReason;
+  /** N. */
+  pointCount: number;
+  /** k. */
+  freeParameterCount: number;
+  /** y_i − f(x_i; params), in the unit of y. */
+  residuals: number[];
+  /** true where a free parameter ended on one of its bounds. */
+  atBound: boolean[];
+}
+
+const EPSILON = Number.EPSILON;
+const FD_STEP = Math.cbrt(EPSILON);
+const RANK_TOLERANCE = 1e-12;
+const BACKTRACK_STEPS = 6;
+/** A full Gauss–Newton step that predicted less than this fraction of χ² and still could not lower it: the rounding floor. */
+const ROUNDING_FLOOR = 1e-9;
+
+function checkNumberArray(value: unknown, name: string, length: number | null): asserts value is readonly number[] {
+  if (!Array.isArray(value)) throw new TypeError(`${name} must be an array of numbers`);
+  if (length !== null && value.length !== length) {
+    throw new RangeError(`${name} must have length ${length} (got ${value.length})`);
+  }
+}
+
+function checkFinite(values: readonly number[], name: string): void {
+  for (let i = 0; i < values.length; i++) {
+    if (typeof values[i] !== "number" || !Number.isFinite(values[i])) {
+      throw new RangeError(`${name}[${i}] must be a finite number (got ${String(values[i])})`);
+    }
+  }
+}
+
+/**
+ * Weighted nonlinear least-squares fit of y = f(x; p) with standard uncertainties σ.
+ *
+ * @param data x (any unit), y and sigma (unit of y; null for unit uncertainties)
+ * @param model f(p, x) over the full parameter vector
+ * @param options initial values, optional bounds, fixed flags, analytic Jacobian and stopping controls
+ * @returns fitted parameters with scaled and unscaled standard errors and covariance, correlation, χ²,
+ *   reduced χ², dof, AIC, BIC, iteration count and an honest convergence flag with its reason.
+ *   Not converging is reported in the result, not thrown.
+ * @throws TypeError when an argument is not an array or function; RangeError for wrong lengths,
+ *   non-finite values, σ ≤ 0, a start outside its bounds, no more points than free parameters, or a
+ *   model that is not finite at the start values.
+ * @see Moré, "The Levenberg–Marquardt algorithm: implementation and theory", LNM 630 (1978) 105–116
+ * @see Press et al., Numerical Recipes, 3rd ed. (2007), §15.5
+ */
+export function fitLeastSquares(
+  data: LeastSquaresData,
+  model: ModelFunction,
+  options: LeastSquaresOptions,
+): LeastSquaresResult {
+  if (data === null || typeof data !== "object") throw new TypeError("data must be an object with x, y and sigma");
+  if (typeof model !== "function") throw new TypeError("model must be a function (params, x) => y");
+  if (options === null || typeof options !== "object") throw new TypeError("options must be an object");
+  const { x, y, sigma } = data;
+  checkNumberArray(x, "data.x", null);
+  const n = x.length;
+  checkNumberArray(y, "data.y", n);
+  checkFinite(x, "data.x");
+  checkFinite(y, "data.y");
+  if (sigma !== null) {
+    checkNumberArray(sigma, "data.sigma", n);
+    for (let i = 0; i < n; i++) {
+      if (!(typeof sigma[i] === "number" && Number.isFinite(sigma[i]) && sigma[i] > 0)) {
+        throw new RangeError(`data.sigma[${i}] must be a finite number > 0 (got ${String(sigma[i])})`);
+      }
+    }
+  }
+  const initial = options.initialValues;
+  checkNumberArray(initial, "options.initialValues", null);
+  const p = initial.length;
+  if (p === 0) throw new RangeError("options.initialValues must name at least one parameter");
+  checkFinite(initial, "options.initialValues");
+  const lower = options.lowerBounds ?? new Array<number>(p).fill(-Infinity);
+  const upper = options.upperBounds ?? new Array<number>(p).fill(Infinity);
+  checkNumberArray(lower, "options.lowerBounds", p);
+  checkNumberArray(upper, "options.upperBounds", p);
+  const fixedFlags = options.fixed ?? new Array<boolean>(p).fill(false);
+  if (!Array.isArray(fixedFlags)) throw new TypeError("options.fixed must be an array of booleans");
+  if (fixedFlags.length !== p) throw new RangeError(`options.fixed must have length ${p} (got ${fixedFlags.length})`);
+  for (let j = 0; j < p; j++) {
+    if (typeof fixedFlags[j] !== "boolean") throw new TypeError(`options.fixed[${j}] must be a boolean`);
+    if (Number.isNaN(lower[j]) || Number.isNaN(upper[j])) throw new RangeError(`bounds of parameter ${j} must not be NaN`);
+    if (!fixedFlags[j]) {
+      if (!(lower[j] < upper[j])) {
+        throw new RangeError(`options.lowerBounds[${j}] (${lower[j]}) must be below options.upperBounds[${j}] (${upper[j]}) for a free parameter`);
+      }
+      if (initial[j] < lower[j] || initial[j] > upper[j]) {
+        throw new RangeError(`options.initialValues[${j}] (${initial[j]}) lies outside its bounds [${lower[j]}, ${upper[j]}]`);
+      }
+    }
+  }
+  const jacobian = options.jacobianFunction;
+  if (jacobian !== undefined && typeof jacobian !== "function") {
+    throw new TypeError("options.jacobianFunction must be a function (params, x) => dF/dp");
+  }
+  const maxIterations = options.maxIterations ?? 300;
+  if (!(Number.isInteger(maxIterations) && maxIterations >= 1)) {
+    throw new RangeError(`options.maxIterations must be an integer ≥ 1 (got ${maxIterations})`);
+  }
+  const tolerance = options.chiSquareTolerance ?? 1e-14;
+  if (!(tolerance > 0 && tolerance < 1)) {
+    throw new RangeError(`options.chiSquareTolerance must lie in (0, 1) (got ${tolerance})`);
+  }
+
+  const free: number[] = [];
+  for (let j = 0; j < p; j++) if (!fixedFlags[j]) free.push(j);
+  const k = free.length;
+  if (n === 0) throw new RangeError("data.x must hold at least one point");
+  if (k > 0 && n <= k) {
+    throw new RangeError(
+      `the fit needs more points than free parameters to estimate uncertainties: ${n} point(s), ${k} free parameter(s)`,
+    );
+  }
+
+  const invSigma = new Float64Array(n);
+  const yWhite = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    invSigma[i] = sigma === null ? 1 : 1 / sigma[i];
+    yWhite[i] = y[i] * invSigma[i];
+  }
+  const lo = free.map((j) => lower[j]);
+  const hi = free.map((j) => upper[j]);
+
+  const toFull = (q: ArrayLike<number>): number[] => {
+    const full = initial.slice();
+    for (let j = 0; j < k; j++) full[free[j]] = q[j];
+    return full;
+  };
+
+  const chiSquareOf = (q: ArrayLike<number>): number => {
+    const full = toFull(q);
+    let sum = 0;
+    for (let i = 0; i < n; i++) {
+      const r = yWhite[i] - model(full, x[i]) * invSigma[i];
+      sum += r * r;
+    }
+    return Number.isFinite(sum) ? sum : NaN;
+  };
+
+  /** ∂f/∂q_j (unwhitened) at x for the free parameters, analytic or by central differences. */
+  const gradientAt = (full: readonly number[]): ((xi: number) => number[]) => {
+    if (jacobian !== undefined) {
+      return (xi) => {
+        const g = jacobian(full, xi);
+        const out = new Array<number>(k);
+        for (let j = 0; j < k; j++) out[j] = g[free[j]];
+        return out;
+      };
+    }
+    // Finite differences with h = ε^(1/3)·|p|. The five-point central stencil
+    // f' ≈ [8(f(p+h) − f(p−h)) − (f(p+2h) − f(p−2h))] / 12h has truncation error O((h/s)⁴), s the
+    // scale on which the model changes with p; that matters when s ≪ |p| (a peak position, say), where
+    // the three-point O((h/s)²) error alone costs digits of the covariance. Next to a bound the stencil
+    // shrinks to three-point central, then one-sided (−3f(p) + 4f(p±h) − f(p±2h)) / ±2h, so the model
+    // is never called outside its bounds. Fornberg, Math. Comp. 51 (1988) 699, Table 1.
+    const stencils: { points: number[][]; weights: number[] }[] = [];
+    for (let j = 0; j < k; j++) {
+      const index = free[j];
+      const v = full[index];
+      const h = Math.min(FD_STEP * (Math.abs(v) || 1), (hi[j] - lo[j]) / 4);
+      const at = (offset: number) => {
+        const point = full.slice();
+        point[index] = v + offset;
+        return point;
+      };
+      const inside = (offset: number) => v + offset >= lo[j] && v + offset <= hi[j];
+      let offsets: number[];
+      let weights: number[];
+      if (inside(2 * h) && inside(-2 * h)) {
+        offsets = [h, -h, 2 * h, -2 * h];
+        weights = [8 / 12, -8 / 12, -1 / 12, 1 / 12];
+      } else if (inside(h) && inside(-h)) {
+        offsets = [h, -h];
+        weights = [1 / 2, -1 / 2];
+      } else if (inside(2 * h)) {
+        offsets = [0, h, 2 * h];
+        weights = [-3 / 2, 2, -1 / 2];
+      } else {
+        offsets = [0, -h, -2 * h];
+        weights = [3 / 2, -2, 1 / 2];
+      }
+      // Divide by the step actually represented in floating point.
+      const hActual = v + h - v;
+      stencils.push({ points: offsets.map(at), weights: weights.map((w) => w / hActual) });
+    }
+    return (xi) => {
+      const out = new Array<number>(k);
+      for (let j = 0; j < k; j++) {
+        const { points, weights } = stencils[j];
+        let d = 0;
+        for (let m = 0; m < points.length; m++) d += weights[m] * model(points[m], xi);
+        out[j] = d;
+      }
+      return out;
+    };
+  };
+
+  /** Whitened residuals r, whitened Jacobian J (row-major n×k) and χ² at q. */
+  const linearise = (q: readonly number[]) => {
+    const full = toFull(q);
+    const grad = gradientAt(full);
+    const r = new Float64Array(n);
+    const jac = new Float64Array(n * k);
+    let chi2 = 0;
+    for (let i = 0; i < n; i++) {
+      const s = invSigma[i];
+      r[i] = yWhite[i] - model(full, x[i]) * s;
+      chi2 += r[i] * r[i];
+      const g = grad(x[i]);
+      for (let j = 0; j < k; j++) jac[i * k + j] = g[j] * s;
+    }
+    return { r, jac, chi2: Number.isFinite(chi2) ? chi2 : NaN };
+  };
+
+  const columnNorms = (jac: Float64Array): number[] => {
+    const norms = new Array<number>(k).fill(0);
+    for (let i = 0; i < n; i++) {
+      for (let j = 0; j < k; j++) norms[j] += jac[i * k + j] * jac[i * k + j];
+    }
+    return norms.map(Math.sqrt);
+  };
+
+  const clampToBounds = (q: number[]): number[] => q.map((v, j) => Math.min(Math.max(v, lo[j]), hi[j]));
+
+  const finish = (q: readonly number[], iterations: number, converged: boolean, stopReason: StopReason) =>
+    buildResult({
+      q, iterations, converged, stopReason, n, k, p, free, initial, x, y, invSigma, model,
+      linearise, sigmaGiven: sigma !== null, lo, hi,
+    });
+
+  if (k === 0) return finish([], 0, true, "no-free-parameters");
+
+  let q = free.map((j) => initial[j]);
+  let state = linearise(q);
+  if (!Number.isFinite(state.chi2)) {
+    const full = toFull(q);
+    const bad = x.findIndex((xi) => !Number.isFinite(model(full, xi)));
+    throw new RangeError(
+      bad >= 0
+        ? `the model is not finite at the initial values (at data.x[${bad}] = ${x[bad]})`
+        : "the model's Jacobian is not finite at the initial values",
+    );
+  }
+  let chi2 = state.chi2;
+  const yScale = yWhite.reduce((sum, v) => sum + v * v, 0);
+
+  // Running-maximum column scaling (MINPACK lmder, mode 1).
+  const scale = columnNorms(state.jac).map((c, j) => (c > 0 && Number.isFinite(c) ? c : 1 / (Math.abs(q[j]) || 1)));
+  const updateScale = (jac: Float64Array) => {
+    const norms = columnNorms(jac);
+    for (let j = 0; j < k; j++) if (Number.isFinite(norms[j]) && norms[j] > scale[j]) scale[j] = norms[j];
+  };
+
+  const indices = Float64Array.from({ length: n }, (_, i) => i);
+  const packageModel = (u: number[]) => {
+    const full = toFull(u.map((v, j) => v / scale[j]));
+    return (i: number) => model(full, x[i]) * invSigma[i];
+  };
+  const packageJacobian = (u: number[]) => {
+    const full = toFull(u.map((v, j) => v / scale[j]));
+    const grad = gradientAt(full);
+    return (i: number) => {
+      const g = grad(x[i]);
+      for (let j = 0; j < k; j++) g[j] *= invSigma[i] / scale[j];
+      return g;
+    };
+  };
+
+  let iterations = 0;
+  let burst = 4;
+  let stalledRounds = 0;
+  let stopReason: StopReason | null = null;
+
+  while (stopReason === null) {
+    if (iterations >= maxIterations) {
+      stopReason = "max-iterations";
+      break;
+    }
+    const chi2AtRoundStart = chi2;
+
+    // 1. A short run of the package from the current best point.
+    const budget = Math.min(burst, maxIterations - iterations);
+    burst = Math.min(burst * 2, 32);
+    const run = levenbergMarquardt({ x: indices, y: yWhite }, packageModel, {
+      initialValues: q.map((v, j) => v * scale[j]),
+      minValues: lo.map((v, j) => v * scale[j]),
+      maxValues: hi.map((v, j) => v * scale[j]),
+      maxIterations: budget,
+      errorTolerance: 0,
+      jacobianFunction: packageJacobian,
+    });
+    iterations += Math.max(run.iterations, 1);
+    const candidate = clampToBounds(run.parameterValues.map((v, j) => v / scale[j]));
+    if (candidate.every(Number.isFinite)) {
+      const chi2Candidate = chiSquareOf(candidate);
+      if (chi2Candidate < chi2) {
+        q = candidate;
+        chi2 = chi2Candidate;
+      }
+    }
+
+    // 2. Our own Gauss–Newton steps with backtracking; they also decide convergence.
+    while (stopReason === null && iterations < maxIterations) {
+      state = linearise(q);
+      if (!Number.isFinite(state.chi2)) break;
+      chi2 = state.chi2;
+      updateScale(state.jac);
+      if (chi2 <= 1e-28 * yScale) {
+        stopReason = "exact-fit";
+        break;
+      }
+      const step = gaussNewtonStep(state.jac, state.r, q, lo, hi, n, k);
+      if (step === null) break;
+      iterations++;
+      const stationary = step.predictedDecrease <= tolerance * chi2;
+      let accepted = false;
+      for (let t = 1, tries = 0; tries <= BACKTRACK_STEPS; t /= 2, tries++) {
+        const trial = clampToBounds(q.map((v, j) => v + t * step.delta[j]));
+        const chi2Trial = chiSquareOf(trial);
+        // At the minimum χ² is flat to rounding, so comparing χ² resolves parameters only to about
+        // √ε standard errors; a stationary step is then more accurate than the comparison, and is
+        // taken unless it raises χ² beyond rounding.
+        if (chi2Trial < chi2 || (stationary && chi2Trial <= chi2 * (1 + 1e-12))) {
+          accepted = true;
+          q = trial;
+          chi2 = chi2Trial;
+          break;
+        }
+        if (stationary) break;
+      }
+      if (stationary || (!accepted && step.predictedDecrease <= ROUNDING_FLOOR * chi2)) {
+        stopReason = chi2 <= 1e-28 * yScale ? "exact-fit" : "chi-square-stationary";
+        break;
+      }
+      if (!accepted) break;
+    }
+    if (stopReason !== null) break;
+
+    if (chi2 < chi2AtRoundStart) {
+      stalledRounds = 0;
+    } else if (++stalledRounds >= 3) {
+      stopReason = "no-progress";
+    }
+  }
+
+  const converged = stopReason === "chi-square-stationary" || stopReason === "exact-fit";
+  return finish(q, iterations, converged, stopReason);
+}
+
+/**
+ * Gauss–Newton step on the free parameters that are not held at a bound by the gradient, solved on the
+ * normal equations scaled to unit diagonal; a tiny ridge is added only if they are not positive
+ * definite. Returns null when no step can be formed.
+ */
+function gaussNewtonStep(
+  jac: Float64Array,
+  r: Float64Array,
+  q: readonly number[],
+  lo: readonly number[],
+  hi: readonly number[],
+  n: number,
+  k: number,
+): { delta: number[]; predictedDecrease: number } | null {
+  const a: number[][] = Array.from({ length: k }, () => new Array<number>(k).fill(0));
+  const g = new Array<number>(k).fill(0);
+  for (let i = 0; i < n; i++) {
+    const row = i * k;
+    for (let j = 0; j < k; j++) {
+      const jj = jac[row + j];
+      g[j] += jj * r[i];
+      for (let m = 0; m <= j; m++) a[j][m] += jj * jac[row + m];
+    }
+  }
+  // χ² decreases when q_j moves along g_j; a parameter on a bound with g pointing outwards stays put.
+  const active: number[] = [];
+  for (let j = 0; j < k; j++) {
+    const blocked = (q[j] <= lo[j] && g[j] <= 0) || (q[j] >= hi[j] && g[j] >= 0);
+    if (!blocked && a[j][j] > 0 && Number.isFinite(a[j][j])) active.push(j);
+  }
+  const delta = new Array<number>(k).fill(0);
+  if (active.length === 0) return { delta, predictedDecrease: 0 };
+  const d = active.map((j) => Math.sqrt(a[j][j]));
+  const b = active.map((j, i) => g[j] / d[i]);
+  for (const ridge of [0, 1e-12, 1e-9, 1e-6, 1e-3]) {
+    const m = active.map((j, i) =>
+      active.map((l, c) => {
+        const v = (j >= l ? a[j][l] : a[l][j]) / (d[i] * d[c]);
+        return i === c ? v + ridge : v;
+      }),
+    );
+    const solution = choleskySolve(m, b);
+    if (solution === null || !solution.every(Number.isFinite)) continue;
+    let predicted = 0;
+    active.forEach((j, i) => {
+      delta[j] = solution[i] / d[i];
+      predicted += g[j] * delta[j];
+    });
+    return { delta, predictedDecrease: Math.max(predicted, 0) };
+  }
+  return null;
+}
+
+interface BuildArgs {
+  q: readonly number[];
+  iterations: number;
+  converged: boolean;
+  stopReason: StopReason;
+  n: number;
+  k: number;
+  p: number;
+  free: readonly number[];
+  initial: readonly number[];
+  x: readonly number[];
+  y: readonly number[];
+  invSigma: Float64Array;
+  model: ModelFunction;
+  linearise: (q: readonly number[]) => { r: Float64Array; jac: Float64Array; chi2: number };
+  sigmaGiven: boolean;
+  lo: readonly number[];
+  hi: readonly number[];
+}
+
+function buildResult(args: BuildArgs): LeastSquaresResult {
+  const { q, n, k, p, free, initial, x, y, model, sigmaGiven } = args;
+  const params = initial.slice();
+  for (let j = 0; j < k; j++) params[free[j]] = q[j];
+  const residuals = x.map((xi, i) => y[i] - model(params, xi));
+  let chiSquare = 0;
+  for (let i = 0; i < n; i++) {
+    const rw = residuals[i] * args.invSigma[i];
+    chiSquare += rw * rw;
+  }
+  const dof = n - k;
+  const reducedChiSquare = dof > 0 ? chiSquare / dof : NaN;
+
+  let covarianceUnscaled: number[][] | null = null;
+  if (k > 0) {
+    const { jac } = args.linearise(q);
+    covarianceUnscaled = freeCovariance(jac, n, k, free, p);
+  } else {
+    covarianceUnscaled = Array.from({ length: p }, () => new Array<number>(p).fill(0));
+  }
+  const covariance = covarianceUnscaled === null ? null : covarianceUnscaled.map((row) => row.map((v) => v * reducedChiSquare));
+  const isFree = new Array<boolean>(p).fill(false);
+  for (const j of free) isFree[j] = true;
+  const stdErrorsUnscaled = params.map((_, j) =>
+    covarianceUnscaled !== null && isFree[j] ? Math.sqrt(covarianceUnscaled[j][j]) : null,
+  );
+  const stdErrors = params.map((_, j) => (covariance !== null && isFree[j] ? Math.sqrt(covariance[j][j]) : null));
+  const correlation =
+    covarianceUnscaled === null
+      ? null
+      : params.map((_, i) =>
+          params.map((__, j) => {
+            if (!isFree[i] || !isFree[j]) return null;
+            if (i === j) return 1;
+            const c = covarianceUnscaled![i][j] / Math.sqrt(covarianceUnscaled![i][i] * covarianceUnscaled![j][j]);
+            return Math.max(-1, Math.min(1, c));
+          }),
+        );
+
+  // Information criteria (see LeastSquaresResult.informationCriteria for the forms and sources).
+  let aic: number;
+  let bic: number;
+  if (sigmaGiven) {
+    aic = chiSquare + 2 * k;
+    bic = chiSquare + k * Math.log(n);
+  } else {
+    const logVariance = n * Math.log(chiSquare / n);
+    aic = logVariance + 2 * (k + 1);
+    bic = logVariance + (k + 1) * Math.log(n);
+  }
+
+  const atBound = params.map((v, j) => {
+    const f = free.indexOf(j);
+    if (f < 0) return false;
+    return v <= args.lo[f] || v >= args.hi[f];
+  });
+
+  return {
+    params,
+    stdErrors,
+    stdErrorsUnscaled,
+    covariance,
+    covarianceUnscaled,
+    correlation,
+    chiSquare,
+    reducedChiSquare,
+    dof,
+    aic,
+    bic,
+    informationCriteria: sigmaGiven ? "known-sigma" : "estimated-sigma",
+    iterations: args.iterations,
+    converged: args.converged,
+    stopReason: args.stopReason,
+    pointCount: n,
+    freeParameterCount: k,
+    residuals,
+    atBound,
+  };
+}
+
+/** (JᵀJ)⁻¹ of the whitened Jacobian via the SVD of its column-normalised form, embedded in p×p. */
+function freeCovariance(jac: Float64Array, n: number, k: number, free: readonly number[], p: number): number[][] | null {
+  const norms = new Array<number>(k).fill(0);
+  for (let i = 0; i < n; i++) for (let j = 0; j < k; j++) norms[j] += jac[i * k + j] * jac[i * k + j];
+  for (let j = 0; j < k; j++) {
+    norms[j] = Math.sqrt(norms[j]);
+    if (!(norms[j] > 0) || !Number.isFinite(norms[j])) return null;
+  }
+  const m = new Matrix(n, k);
+  for (let i = 0; i < n; i++) for (let j = 0; j < k; j++) m.set(i, j, jac[i * k + j] / norms[j]);
+  const svd = new SingularValueDecomposition(m, { computeLeftSingularVectors: false });
+  const s = svd.diagonal;
+  const v = svd.rightSingularVectors;
+  const sMax = Math.max(...s);
+  if (!(sMax > 0) || s.some((si) => !(si > RANK_TOLERANCE * sMax))) return null;
+  const out = Array.from({ length: p }, () => new Array<number>(p).fill(0));
+  for (let a = 0; a < k; a++) {
+    for (let b = 0; b < k; b++) {
+      let sum = 0;
+      for (let c = 0; c < k; c++) sum += (v.get(a, c) * v.get(b, c)) / (s[c] * s[c]);
+      out[free[a]][free[b]] = sum / (norms[a] * norms[b]);
+    }
+  }
+  return out;
+}
