@@ -49,7 +49,8 @@ export async function startFakeSmtp(db: Db): Promise<FakeSmtpServer> {
                 from: parsed.from?.text || envelopeFrom,
                 to: headerTo || envelopeTo,
                 subject: parsed.subject ?? "",
-                text: parsed.text ?? "",
+                // The parser ends the body with the line break the transfer added; the outbox shows it without.
+                text: (parsed.text ?? "").replace(/\r?\n$/, ""),
                 raw: raw.toString("utf8"),
                 receivedAt: Date.now(),
               })
