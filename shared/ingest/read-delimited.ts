@@ -1,0 +1,476 @@
+/*
+ * Reads delimited text the way calorimeters export it: free-text lines before the header, comma,
+ * semicolon, tab or whitespace delimiters, decimal commas, units in the header cells or in a row of
+ * their own under the names, a byte-order mark, CRLF or CR line ends. Quoted cells go through papaparse.
+ * Nothing is guessed silently: every refusal is an IngestError naming the line and column.
+ */
+import Papa from "papaparse";
+import type { DecimalMark, Delimiter, ParsedUnit, TableSummary } from "@shared/schemas/ingest";
+import { IngestError, type IngestIssue } from "./ingest-error";
+import { parseUnit, splitHeaderLabel } from "./units";
+
+/** One data row of the file. */
+export interface DataRow {
+  /** 1-based line number in the file. */
+  line: number;
+  /** The cells as written (trimmed, quotes removed), one per column. */
+  cells: string[];
+  /** Parsed numbers for number columns; null for an empty cell and for every cell of a text column. */
+  values: (number | null)[];
+}
+
+/** A file as read: header, units, rows and how it was written. */
+export interface DelimitedTable {
+  /** Column names as in the file (trimmed; an empty name becomes "Column N", a repeated one gets " (2)"). */
+  header: string[];
+  /** 1-based line of the names; null when the file has no header row (names are then "Column 1", …). */
+  headerLine: number | null;
+  /** 1-based line of a separate row of units under the names, or null. */
+  unitsLine: number | null;
+  /** Names without their unit ("Heat Capacity" from "Heat Capacity [mJ/K]"). */
+  labels: string[];
+  /** Unit text per column as written, or null. */
+  unitTexts: (string | null)[];
+  /** Recognised unit per column, or null. */
+  units: (ParsedUnit | null)[];
+  /** A column is "number" when most of its non-empty cells are numbers; those must all be numbers. */
+  columnKinds: ("number" | "text")[];
+  rows: DataRow[];
+  delimiter: Delimiter;
+  decimalMark: DecimalMark;
+  /** Every line before the header (or before the first data row), as written: metadata lives here. */
+  preamble: string[];
+  /** True when the text began with a byte-order mark (removed before reading). */
+  byteOrderMark: boolean;
+}
+
+const NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+const COMMA_NUMBER = /^[+-]?(?:\d+,\d*|,\d+)(?:[eE][+-]?\d+)?$/;
+const NON_FINITE = /^[+-]?(?:nan|inf|infinity|1\.#(?:inf|ind|qnan)(?:0+)?)$/i;
+// Tab and whitespace first on ties: a tab file splits the same way on whitespace.
+const DELIMITERS: readonly Delimiter[] = ["\t", ";", ",", "whitespace"];
+// How many lines after a header candidate are looked at to confirm it.
+const CONFIRM_ROWS = 3;
+
+type CellKind = "empty" | "number" | "nonfinite" | "text";
+
+function classify(cell: string, allowComma: boolean): CellKind {
+  if (cell === "") return "empty";
+  if (NUMBER.test(cell)) return "number";
+  if (allowComma && COMMA_NUMBER.test(cell)) return "number";
+  if (NON_FINITE.test(cell)) return "nonfinite";
+  return "text";
+}
+
+function commaAllowed(delimiter: Delimiter): boolean {
+  return delimiter !== ",";
+}
+
+function splitLine(line: string, delimiter: Delimiter): string[] {
+  if (delimiter === "whitespace") {
+    const out: string[] = [];
+    for (const m of line.matchAll(/"([^"]*)"|(\S+)/g)) out.push((m[1] ?? m[2]).trim());
+    return out;
+  }
+  if (!line.includes('"')) return line.split(delimiter).map((c) => c.trim());
+  const parsed = Papa.parse<string[]>(line, { delimiter, quoteChar: '"', header: false, newline: "\n" });
+  return (parsed.data[0] ?? []).map((c) => String(c).trim());
+}
+
+/** Length without trailing empty cells ("1,2," has 2). */
+function usedLength(cells: readonly string[]): number {
+  let n = cells.length;
+  while (n > 0 && cells[n - 1] === "") n--;
+  return n;
+}
+
+/** Whether a split line fits `count` columns: no value beyond them, and no cell missing (empty cells count). */
+function fits(cells: readonly string[], count: number): boolean {
+  return usedLength(cells) <= count && cells.length >= count;
+}
+
+function toCount(cells: readonly string[], count: number): string[] {
+  const out = cells.slice(0, count);
+  while (out.length < count) out.push("");
+  return out;
+}
+
+interface LineInfo {
+  cells: string[];
+  numeric: number;
+  text: number;
+}
+
+function analyse(line: string, delimiter: Delimiter): LineInfo {
+  const cells = splitLine(line, delimiter);
+  let numeric = 0;
+  let text = 0;
+  const allow = commaAllowed(delimiter);
+  for (const c of cells) {
+    const k = classify(c, allow);
+    if (k === "number" || k === "nonfinite") numeric++;
+    else if (k === "text") text++;
+  }
+  return { cells, numeric, text };
+}
+
+function isDataLike(info: LineInfo): boolean {
+  return info.numeric >= 2 && info.numeric > info.text;
+}
+
+function isNameLine(info: LineInfo): boolean {
+  return info.numeric === 0 && info.text >= 1;
+}
+
+/** Header cells of a whitespace file may contain single spaces: fall back to tabs or 2+ spaces. */
+function headerCells(line: string, delimiter: Delimiter, count: number): string[] {
+  const cells = splitLine(line, delimiter);
+  if (delimiter !== "whitespace" || fits(cells, count)) return cells;
+  const wide = line
+    .trim()
+    .split(/\t|\s{2,}/)
+    .map((c) => c.replace(/^"|"$/g, "").trim());
+  return wide;
+}
+
+function isUnitsRow(cells: readonly string[]): boolean {
+  let units = 0;
+  for (const c of cells) {
+    if (c === "" || c === "-" || c === "%" || c === "1") continue;
+    const inner = c.replace(/^[([]\s*|\s*[)\]]$/g, "");
+    if (parseUnit(inner) === null) return false;
+    units++;
+  }
+  return units > 0;
+}
+
+function checkNotBinary(text: string): void {
+  const nul = text.indexOf("\u0000");
+  if (nul >= 0) {
+    const line = text.slice(0, nul).split(/\r\n|\n|\r/).length;
+    throw new IngestError("BINARY_FILE", "the file contains NUL bytes: it is binary, not delimited text", line);
+  }
+  const sample = text.slice(0, 65536);
+  let bad = 0;
+  for (let i = 0; i < sample.length; i++) {
+    const c = sample.charCodeAt(i);
+    if ((c < 0x20 && c !== 0x09 && c !== 0x0a && c !== 0x0d) || c === 0x7f || (c >= 0x80 && c <= 0x9f) || c === 0xfffd) bad++;
+  }
+  // A text export has next to no control characters; 5 % is far above what a stray byte gives.
+  if (bad > 0.05 * sample.length) {
+    throw new IngestError("BINARY_FILE", "most of the file is not printable text: it looks binary, not delimited text");
+  }
+}
+
+function uniqueNames(cells: readonly string[]): string[] {
+  const seen = new Map<string, number>();
+  return cells.map((raw, i) => {
+    const base = raw === "" ? `Column ${i + 1}` : raw;
+    const n = (seen.get(base) ?? 0) + 1;
+    seen.set(base, n);
+    return n === 1 ? base : `${base} (${n})`;
+  });
+}
+
+/**
+ * Reads a calorimeter export.
+ * The header is the first line of names that is followed by rows of numbers with the same number of
+ * columns; a row of units right under the names is recognised; every line above is the preamble.
+ * The delimiter is the one of tab, ";", ",", whitespace that yields the most rows of numbers. Decimal
+ * commas are read in ";", tab and whitespace files (then a decimal point in a number is refused).
+ * @param text the whole file as text (see `decodeBytes`)
+ * @returns header, units from the header, rows with their 1-based line numbers, delimiter, decimal mark, preamble
+ * @throws IngestError EMPTY_FILE, BINARY_FILE, NO_NUMERIC_ROWS, NO_DATA_ROWS, RAGGED_ROW, NOT_A_NUMBER, NOT_FINITE
+ */
+export function readDelimited(text: string): DelimitedTable {
+  const byteOrderMark = text.charCodeAt(0) === 0xfeff;
+  const body = byteOrderMark ? text.slice(1) : text;
+  if (body.trim().length === 0) throw new IngestError("EMPTY_FILE", "the file is empty");
+  checkNotBinary(body);
+  const lines = body.split(/\r\n|\n|\r/);
+  const nonBlank: number[] = [];
+  for (let i = 0; i < lines.length; i++) if (lines[i].trim() !== "") nonBlank.push(i);
+
+  let best: { delimiter: Delimiter; infos: Map<number, LineInfo>; score: number } | null = null;
+  for (const delimiter of DELIMITERS) {
+    const infos = new Map<number, LineInfo>();
+    let score = 0;
+    for (const i of nonBlank) {
+      const info = analyse(lines[i], delimiter);
+      infos.set(i, info);
+      if (isDataLike(info)) score++;
+    }
+    if (best === null || score > best.score) best = { delimiter, infos, score };
+  }
+  if (best === null || best.score === 0) throw noRows(lines, nonBlank);
+  const { delimiter, infos } = best;
+
+  // Find the header: names, then a line with a number, then mostly rows of numbers.
+  let headerIndex = -1;
+  let dataStart = -1;
+  let columnCount = 0;
+  const confirmed = (k: number, count: number): boolean => {
+    const window = nonBlank.slice(k, k + CONFIRM_ROWS).map((j) => infos.get(j)!);
+    const dataLike = window.filter(isDataLike).length;
+    return window.every((w) => fits(w.cells, count)) && dataLike >= Math.ceil(window.length / 2);
+  };
+  for (let k = 0; k < nonBlank.length; k++) {
+    const i = nonBlank[k];
+    const info = infos.get(i)!;
+    if (isDataLike(info)) {
+      // A file without names; a lone line of numbers in the preamble ("mass, 12.3, 0.1") is skipped.
+      const count = usedLength(info.cells);
+      if (confirmed(k, count)) {
+        dataStart = i;
+        columnCount = count;
+        break;
+      }
+      continue;
+    }
+    if (!isNameLine(info) || k + 1 >= nonBlank.length) continue;
+    const next = infos.get(nonBlank[k + 1])!;
+    if (next.numeric === 0) continue;
+    const names = delimiter === "whitespace" ? headerCells(lines[i], delimiter, usedLength(next.cells)) : info.cells;
+    const count = usedLength(names);
+    if (count < 2) continue;
+    if (confirmed(k + 1, count)) {
+      headerIndex = i;
+      dataStart = nonBlank[k + 1];
+      columnCount = count;
+      break;
+    }
+  }
+  if (dataStart < 0) throw noRows(lines, nonBlank);
+
+  let namesIndex: number | null = headerIndex >= 0 ? headerIndex : null;
+  let unitsIndex: number | null = null;
+  if (headerIndex >= 0) {
+    const cells = toCount(headerCells(lines[headerIndex], delimiter, columnCount), columnCount);
+    const k = nonBlank.indexOf(headerIndex);
+    if (isUnitsRow(cells) && k > 0) {
+      const prev = nonBlank[k - 1];
+      const prevCells = headerCells(lines[prev], delimiter, columnCount);
+      if (isNameLine(infos.get(prev)!) && fits(prevCells, columnCount)) {
+        namesIndex = prev;
+        unitsIndex = headerIndex;
+      }
+    }
+  }
+
+  const rawNames =
+    namesIndex === null
+      ? Array.from({ length: columnCount }, (_, c) => `Column ${c + 1}`)
+      : toCount(headerCells(lines[namesIndex], delimiter, columnCount), columnCount);
+  const header = uniqueNames(rawNames);
+  const labels: string[] = [];
+  const unitTexts: (string | null)[] = [];
+  const units: (ParsedUnit | null)[] = [];
+  const unitCells = unitsIndex === null ? null : toCount(headerCells(lines[unitsIndex], delimiter, columnCount), columnCount);
+  for (let c = 0; c < columnCount; c++) {
+    const split = splitHeaderLabel(rawNames[c]);
+    if (unitCells !== null && unitCells[c] !== "") {
+      const inner = unitCells[c].replace(/^[([]\s*|\s*[)\]]$/g, "");
+      labels.push(rawNames[c]);
+      unitTexts.push(inner);
+      units.push(parseUnit(inner));
+    } else {
+      labels.push(split.label);
+      unitTexts.push(split.unitText);
+      units.push(split.unit);
+    }
+  }
+
+  const preambleEnd = namesIndex ?? dataStart;
+  const preamble = lines.slice(0, preambleEnd);
+  // A file ending in a newline has one empty piece after it: that is not a preamble or data line.
+  const dataLines: number[] = nonBlank.filter((i) => i >= dataStart);
+
+  const issues: IngestIssue[] = [];
+  const codes: IngestError["code"][] = [];
+  const note = (code: IngestError["code"], issue: IngestIssue): void => {
+    if (issues.length < 20) {
+      issues.push(issue);
+      codes.push(code);
+    }
+  };
+  const headerLineNo = namesIndex === null ? null : namesIndex + 1;
+  const split: { line: number; cells: string[] }[] = [];
+  for (const i of dataLines) {
+    const cells = infos.get(i)!.cells;
+    if (usedLength(cells) === 0) continue;
+    if (!fits(cells, columnCount)) {
+      const where = headerLineNo === null ? `the first data row (line ${dataStart + 1})` : `the header (line ${headerLineNo})`;
+      note("RAGGED_ROW", {
+        line: i + 1,
+        column: null,
+        message: `line ${i + 1}: ${usedLength(cells)} values, but ${where} has ${columnCount} columns`,
+      });
+      continue;
+    }
+    split.push({ line: i + 1, cells: toCount(cells, columnCount) });
+  }
+
+  const allowComma = commaAllowed(delimiter);
+  let decimalMark: DecimalMark = ".";
+  if (allowComma) {
+    outer: for (const r of split)
+      for (const c of r.cells)
+        if (COMMA_NUMBER.test(c)) {
+          decimalMark = ",";
+          break outer;
+        }
+  }
+
+  const columnKinds: ("number" | "text")[] = [];
+  for (let c = 0; c < columnCount; c++) {
+    let numbers = 0;
+    let texts = 0;
+    for (const r of split) {
+      const k = classify(r.cells[c], allowComma);
+      if (k === "number" || k === "nonfinite") numbers++;
+      else if (k === "text") texts++;
+    }
+    columnKinds.push(texts > numbers ? "text" : "number");
+  }
+
+  const rows: DataRow[] = [];
+  for (const r of split) {
+    const values: (number | null)[] = new Array(columnCount).fill(null);
+    for (let c = 0; c < columnCount; c++) {
+      if (columnKinds[c] === "text") continue;
+      const cell = r.cells[c];
+      if (cell === "") continue;
+      const parsed = parseNumber(cell, decimalMark);
+      if (typeof parsed === "number") values[c] = parsed;
+      else note(parsed.code, { line: r.line, column: header[c], message: `line ${r.line}, column '${header[c]}': ${parsed.message}` });
+    }
+    rows.push({ line: r.line, cells: r.cells, values });
+  }
+
+  if (issues.length > 0) {
+    const first = issues[0];
+    const detail = first.message.slice(first.message.indexOf(": ") + 2);
+    throw new IngestError(codes[0], detail, first.line, first.column, issues.slice(1));
+  }
+  if (rows.length === 0) {
+    throw new IngestError("NO_DATA_ROWS", "found column names but no data rows below them", headerLineNo);
+  }
+
+  return {
+    header,
+    headerLine: headerLineNo,
+    unitsLine: unitsIndex === null ? null : unitsIndex + 1,
+    labels,
+    unitTexts,
+    units,
+    columnKinds,
+    rows,
+    delimiter,
+    decimalMark,
+    preamble,
+    byteOrderMark,
+  };
+}
+
+function parseNumber(cell: string, decimalMark: DecimalMark): number | { code: IngestError["code"]; message: string } {
+  if (NON_FINITE.test(cell)) return { code: "NOT_FINITE", message: `'${cell}' is not a finite number` };
+  let s = cell;
+  if (decimalMark === ",") {
+    if (cell.includes(".") && NUMBER.test(cell)) {
+      return { code: "NOT_A_NUMBER", message: `'${cell}' has a decimal point, but this file writes decimal commas` };
+    }
+    s = cell.replace(",", ".");
+  }
+  if (!NUMBER.test(s)) return { code: "NOT_A_NUMBER", message: `'${cell}' is not a number` };
+  const v = Number(s);
+  if (!Number.isFinite(v)) return { code: "NOT_FINITE", message: `'${cell}' is beyond the range of double precision` };
+  return v;
+}
+
+function noRows(lines: readonly string[], nonBlank: readonly number[]): IngestError {
+  const last = nonBlank[nonBlank.length - 1];
+  let widest = 0;
+  let allText = true;
+  for (const d of DELIMITERS) {
+    const info = analyse(lines[last], d);
+    if (usedLength(info.cells) > widest) {
+      widest = usedLength(info.cells);
+      allText = isNameLine(info);
+    }
+  }
+  if (widest >= 2 && allText) {
+    return new IngestError("NO_DATA_ROWS", "found column names but no data rows below them", last + 1);
+  }
+  return new IngestError("NO_NUMERIC_ROWS", "no rows with at least two numbers were found: is this a delimited export?");
+}
+
+/**
+ * The reader's findings without the full row list, for the import dialog.
+ * @param table a table from `readDelimited`
+ * @param firstRows how many data rows to include
+ * @returns a `TableSummary`
+ */
+export function summarizeTable(table: DelimitedTable, firstRows = 20): TableSummary {
+  return {
+    header: table.header,
+    headerLine: table.headerLine,
+    unitsLine: table.unitsLine,
+    unitTexts: table.unitTexts,
+    units: table.units,
+    columnKinds: table.columnKinds,
+    delimiter: table.delimiter,
+    decimalMark: table.decimalMark,
+    preamble: table.preamble,
+    rowCount: table.rows.length,
+    firstRows: table.rows.slice(0, firstRows).map((r) => ({ line: r.line, cells: r.cells })),
+  };
+}
+
+/** Text encodings `decodeBytes` tells apart. */
+export type TextEncodingName = "utf-8" | "utf-16le" | "utf-16be" | "windows-1252";
+
+/**
+ * Decodes an uploaded file: UTF-16 by its byte-order mark, else UTF-8, else Windows-1252 (older
+ * instrument PCs write "µ" as the single byte 0xB5). Uses the standard TextDecoder (browser and Node).
+ * @param bytes the raw file
+ * @returns the text (a UTF-8 or UTF-16 byte-order mark is kept as U+FEFF for `readDelimited` to report) and the encoding used
+ */
+export function decodeBytes(bytes: Uint8Array): { text: string; encoding: TextEncodingName } {
+  if (bytes.length >= 2 && bytes[0] === 0xff && bytes[1] === 0xfe) {
+    return { text: new TextDecoder("utf-16le", { ignoreBOM: true }).decode(bytes), encoding: "utf-16le" };
+  }
+  if (bytes.length >= 2 && bytes[0] === 0xfe && bytes[1] === 0xff) {
+    return { text: new TextDecoder("utf-16be", { ignoreBOM: true }).decode(bytes), encoding: "utf-16be" };
+  }
+  try {
+    return { text: new TextDecoder("utf-8", { fatal: true, ignoreBOM: true }).decode(bytes), encoding: "utf-8" };
+  } catch {
+    return { text: new TextDecoder("windows-1252").decode(bytes), encoding: "windows-1252" };
+  }
+}
+
+/**
+ * Looks for the sample mass in the preamble ("Sample mass: 12.34 mg", "mass (mg), 12.34").
+ * Lines that speak of molar mass are skipped.
+ * @param preamble lines before the header
+ * @returns mass in mg and the 1-based line it came from, or null
+ */
+export function findSampleMassMg(preamble: readonly string[]): { massMg: number; line: number } | null {
+  for (let i = 0; i < preamble.length; i++) {
+    const l = preamble[i];
+    if (!/\bmass\b/i.test(l) || /molar|molecular|formula/i.test(l)) continue;
+    const unitAfter = /\bmass\b[^0-9]*?([0-9]+(?:[.,][0-9]+)?)\s*(mg|g)\b/i.exec(l);
+    const unitBefore = /\bmass\b\s*[([]\s*(mg|g)\s*[)\]][^0-9]*([0-9]+(?:[.,][0-9]+)?)/i.exec(l);
+    let value: number | null = null;
+    let unit = "mg";
+    if (unitAfter) {
+      value = Number(unitAfter[1].replace(",", "."));
+      unit = unitAfter[2].toLowerCase();
+    } else if (unitBefore) {
+      value = Number(unitBefore[2].replace(",", "."));
+      unit = unitBefore[1].toLowerCase();
+    }
+    if (value !== null && Number.isFinite(value) && value > 0) return { massMg: unit === "g" ? value * 1000 : value, line: i + 1 };
+  }
+  return null;
+}
