@@ -115,7 +115,11 @@ export function fitLinearLeastSquares(
       return sum / (norms[i] * norms[j]);
     }),
   );
-  const residuals = design.map((row, i) => y[i] - row.reduce((sum, xij, j) => sum + xij * params[j], 0));
+  const residuals = design.map((row, i) => {
+    let predicted = 0;
+    for (let j = 0; j < k; j++) predicted += row[j] * params[j];
+    return y[i] - predicted;
+  });
   const chiSquare = residuals.reduce((sum, r, i) => sum + (r * w(i)) ** 2, 0);
   const dof = n - k;
   const reducedChiSquare = chiSquare / dof;
