@@ -30,7 +30,7 @@ export function createApp(deps: AppDeps): express.Express {
       },
     }),
   );
-  app.use(originCheck([deps.publicUrl]));
+  app.use(originCheck([deps.publicUrl, ...(deps.extraOrigins ?? [])]));
   app.use(express.json({ limit: "1mb" }));
   app.use(sessionMiddleware(ctx.lucia));
 

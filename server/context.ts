@@ -25,6 +25,8 @@ export interface AppDeps {
   secureCookies?: boolean;
   /** Built client to serve (dist/); omitted in API tests and in `npm run dev`. */
   clientDir?: string;
+  /** Further origins whose writes are accepted (the 127.0.0.1 twin of http://localhost:PORT). */
+  extraOrigins?: string[];
   /** Requests allowed per minute on sign-in and reset per client address. */
   authRateLimitPerMinute?: number;
 }

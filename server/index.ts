@@ -121,6 +121,8 @@ export async function startServer(env: Env = readEnv(), options: StartOptions = 
       publicUrl: url,
       secureCookies: url.startsWith("https:"),
       clientDir,
+      // Without PUBLIC_URL the app is reached as localhost or 127.0.0.1; both are this same origin in practice.
+      extraOrigins: env.PUBLIC_URL ? [] : [`http://127.0.0.1:${address.port}`],
     });
     server.on("request", app);
 
