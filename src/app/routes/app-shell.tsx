@@ -85,14 +85,21 @@ export function Component() {
         Skip to content
       </a>
       <header className="sticky top-0 z-20 border-b border-line bg-surface/95 backdrop-blur">
-        <div className="mx-auto flex h-14 max-w-7xl items-center gap-3 px-4 sm:px-6">
-          <Link to="/" aria-label="Thetafold, your lab's start page" className="shrink-0 rounded-md">
-            <Wordmark />
-          </Link>
-          <span aria-hidden="true" className="h-6 w-px bg-line" />
-          <LabSwitcher memberships={me.memberships} currentLabId={labId} onSelect={switchLab} />
-          {sections.length > 0 && <SectionNav links={sections} className="ml-4 hidden md:block" />}
-          <div className="ml-auto">
+        <div className="mx-auto flex max-w-7xl flex-wrap items-center gap-x-3 px-4 sm:px-6">
+          <div className="flex h-14 min-w-0 flex-1 items-center gap-3 md:flex-none">
+            <Link to="/" aria-label="Thetafold, your lab's start page" className="shrink-0 rounded-md">
+              <Wordmark />
+            </Link>
+            <span aria-hidden="true" className="h-6 w-px bg-line" />
+            <LabSwitcher memberships={me.memberships} currentLabId={labId} onSelect={switchLab} />
+          </div>
+          {sections.length > 0 && (
+            <SectionNav
+              links={sections}
+              className="order-last -mx-2 w-full overflow-x-auto border-t border-line py-1.5 md:order-none md:mx-0 md:ml-4 md:w-auto md:border-0 md:py-0"
+            />
+          )}
+          <div className="ml-auto flex h-14 items-center">
             <UserMenu
               user={me.user}
               showOutbox={me.user.isSiteAdmin && fakeMail}
@@ -101,11 +108,6 @@ export function Component() {
             />
           </div>
         </div>
-        {sections.length > 0 && (
-          <div className="overflow-x-auto border-t border-line px-2 py-1.5 md:hidden">
-            <SectionNav links={sections} />
-          </div>
-        )}
         <div aria-hidden="true" className="h-0.5 bg-linear-to-r from-frost via-frost/20 via-60% to-ember" />
       </header>
       <main id="main" tabIndex={-1} className="mx-auto w-full max-w-7xl flex-1 px-4 py-8 focus:outline-none sm:px-6">

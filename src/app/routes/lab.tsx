@@ -24,7 +24,9 @@ export const loader =
   async ({ params }: LoaderFunctionArgs) => {
     const labId = params.labId ?? "";
     const me = await queryClient.ensureQueryData(meQueryOptions());
-    const isLead = me?.memberships.some((m) => m.labId === labId && m.role === "lead") ?? false;
+    const membership = me?.memberships.find((m) => m.labId === labId);
+    if (!membership) return null; // lab-scope answers 404 for this; loaders run side by side, so do not ask the API
+    const isLead = membership.role === "lead";
     // prefetch: a failed list shows inline with a retry instead of replacing the page.
     await Promise.all([
       queryClient.prefetchQuery(membersQueryOptions(labId)),
