@@ -17,6 +17,12 @@ import { outboxRouter } from "./routes/outbox";
 import { setupRouter } from "./routes/setup";
 import { compareRouter } from "./routes/compare";
 import { comparisonsRouter } from "./routes/comparisons";
+import { batchesRouter } from "./routes/batches";
+import { importPresetsRouter } from "./routes/import-presets";
+import { runsRouter } from "./routes/runs";
+import { samplesRouter } from "./routes/samples";
+import { bundlesRouter } from "./routes/bundles";
+import { sharedRouter } from "./routes/shared";
 
 /** Builds the Express app without listening (tests import it with an in-memory database). */
 export function createApp(deps: AppDeps): express.Express {
@@ -43,8 +49,14 @@ export function createApp(deps: AppDeps): express.Express {
   app.use("/api", invitationsRouter(ctx));
   app.use("/api", auditRouter(ctx));
   app.use("/api", outboxRouter(ctx));
+  app.use("/api", batchesRouter(ctx));
+  app.use("/api", samplesRouter(ctx));
+  app.use("/api", runsRouter(ctx));
+  app.use("/api", importPresetsRouter(ctx));
   app.use("/api", compareRouter(ctx));
   app.use("/api", comparisonsRouter(ctx));
+  app.use("/api", bundlesRouter(ctx));
+  app.use("/api", sharedRouter(ctx));
 
   app.use("/api", () => {
     throw new HttpError(404, "NOT_FOUND", "No such API route");

@@ -9,6 +9,7 @@ import type {
   ComparisonResult,
 } from "@shared/schemas/compare";
 import { combineInQuadrature, OUTLIER_THRESHOLD_SIGMA, unweightedMean, weightedMean } from "@shared/stats/weighted-mean";
+import { GAS_CONSTANT } from "@shared/physics/constants";
 import type { Db } from "../db/client";
 import { batches, fitParameters, fits, runPoints, runs, samples } from "../db/schema";
 import { notFound } from "../http-error";
@@ -18,9 +19,6 @@ import { notFound } from "../http-error";
  * "approved" count. Each row's weight in its group is 1/σ² with σ = σ_stat ⊕ σ_sys: the mass systematic
  * of one sample is independent of the next sample's, so across samples it scatters like a random error.
  */
-
-/** Molar gas constant in J/(mol·K): CODATA 2018, exact (N_A · k_B). */
-const GAS_CONSTANT = 8.314462618;
 
 /** What to compare. Empty id lists on both sides mean every approved fit of the lab. */
 export interface CompareInput {

@@ -59,11 +59,12 @@ describe("GET /api/labs/:labId/compare", () => {
   it("derives θ_D from β of γT + βT³ as (12π⁴nR/5β)^(1/3) and says so", async () => {
     const r = ComparisonResultSchema.parse((await cast.agents.lead.get(`${base}/compare?parameter=thetaD`)).body);
     const c = r.rows.find((x) => x.sampleLabel === "C1")!;
-    // mpmath 1.3.0, 30 digits: cbrt(12π⁴ · 8.314462618 / (5 · 4.8e-5)) = 343.400740022362620735526770761 K,
-    // σ_stat = θ/3 · 3e-7/4.8e-5 = 0.715418208379922 K, σ_sys = θ/3 · 1e-7/4.8e-5 = 0.238472736126641 K.
-    expectClose(c.value, 343.400740022362620735526770761, { rel: 1e-13 });
-    expectClose(c.sigmaStat!, 0.715418208379922126532347439086, { rel: 1e-12 });
-    expectClose(c.sigmaSys!, 0.238472736126640708844115813029, { rel: 1e-12 });
+    // mpmath 1.3.0, 30 digits, R = k_B·N_A = 8.31446261815324 J/(mol·K) (CODATA 2018 exact):
+    // cbrt(12π⁴R / (5 · 4.8e-5)) = 343.400740024472307266831892311 K,
+    // σ_stat = θ/3 · 3e-7/4.8e-5 = 0.715418208384317 K, σ_sys = θ/3 · 1e-7/4.8e-5 = 0.238472736128106 K.
+    expectClose(c.value, 343.400740024472307266831892311, { rel: 1e-13 });
+    expectClose(c.sigmaStat!, 0.715418208384317306805899775648, { rel: 1e-12 });
+    expectClose(c.sigmaSys!, 0.238472736128105768935299925216, { rel: 1e-12 });
     expect(c.derivedFrom).toBe("beta");
     expect(r.notes.some((n) => n.kind === "derived")).toBe(true);
     // The table mixes two models and two windows: a note says the rows are not comparable as such.
