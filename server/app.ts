@@ -17,6 +17,10 @@ import { outboxRouter } from "./routes/outbox";
 import { setupRouter } from "./routes/setup";
 import { compareRouter } from "./routes/compare";
 import { comparisonsRouter } from "./routes/comparisons";
+import { batchesRouter } from "./routes/batches";
+import { importPresetsRouter } from "./routes/import-presets";
+import { runsRouter } from "./routes/runs";
+import { samplesRouter } from "./routes/samples";
 import { bundlesRouter } from "./routes/bundles";
 import { sharedRouter } from "./routes/shared";
 
@@ -45,6 +49,10 @@ export function createApp(deps: AppDeps): express.Express {
   app.use("/api", invitationsRouter(ctx));
   app.use("/api", auditRouter(ctx));
   app.use("/api", outboxRouter(ctx));
+  app.use("/api", batchesRouter(ctx));
+  app.use("/api", samplesRouter(ctx));
+  app.use("/api", runsRouter(ctx));
+  app.use("/api", importPresetsRouter(ctx));
   app.use("/api", compareRouter(ctx));
   app.use("/api", comparisonsRouter(ctx));
   app.use("/api", bundlesRouter(ctx));
