@@ -2,7 +2,6 @@ import { createHash } from "node:crypto";
 import { readFileSync, writeFileSync } from "node:fs";
 import { eq } from "drizzle-orm";
 import { strFromU8, unzipSync, zipSync } from "fflate";
-import type { Test } from "supertest";
 import { beforeAll, describe, expect, it } from "vitest";
 import { ApiErrorSchema } from "@shared/schemas/api-error";
 import { BundleListSchema, BundleSchema, BundleStreamLineSchema, type Bundle } from "@shared/schemas/bundles";
@@ -10,16 +9,7 @@ import { auditLog, runs } from "../../server/db/schema";
 import { verifyBagZip } from "../../server/services/bagit";
 import { storedFilePath } from "../../server/services/files";
 import { makeTestApp, seedRoles, type TestApp } from "../helpers/app";
-import { addBatch, addSampleWithFits, debyeParams, seedSeries } from "./compare-fixtures";
-
-/** Collects a binary body (supertest only buffers text and JSON by itself). */
-export function binary(req: Test): Test {
-  return req.buffer(true).parse((res, cb) => {
-    const chunks: Buffer[] = [];
-    res.on("data", (c: Buffer) => chunks.push(c));
-    res.on("end", () => cb(null, Buffer.concat(chunks)));
-  });
-}
+import { addBatch, addSampleWithFits, binary, debyeParams, seedSeries } from "./compare-fixtures";
 
 const sha256 = (b: Uint8Array) => createHash("sha256").update(b).digest("hex");
 

@@ -1,4 +1,5 @@
 import { randomUUID } from "node:crypto";
+import type { Test } from "supertest";
 import type { Db } from "../../server/db/client";
 import { batches, fitParameters, fits, runPoints, runs, samples, storedFiles } from "../../server/db/schema";
 import { putStoredFile } from "../../server/services/files";
@@ -201,4 +202,13 @@ export function seedSeries(db: Db, dataDir: string, labId: string, userId: strin
     ],
   });
   return { batchA, batchB, batchC, a, b1, b2, c1 };
+}
+
+/** Collects a binary body (supertest only buffers text and JSON by itself). */
+export function binary(req: Test): Test {
+  return req.buffer(true).parse((res, cb) => {
+    const chunks: Buffer[] = [];
+    res.on("data", (c: Buffer) => chunks.push(c));
+    res.on("end", () => cb(null, Buffer.concat(chunks)));
+  });
 }
