@@ -209,23 +209,39 @@ export function readDelimited(text: string): DelimitedTable {
   let headerIndex = -1;
   let dataStart = -1;
   let columnCount = 0;
-  const confirmed = (k: number, count: number): boolean => {
-    const window = nonBlank.slice(k, k + CONFIRM_ROWS).map((j) => infos.get(j)!);
-    const dataLike = window.filter(isDataLike).length;
-    return window.every((w) => fits(w.cells, count)) && dataLike >= Math.ceil(window.length / 2);
+  const windowAt = (k: number): LineInfo[] => nonBlank.slice(k, k + CONFIRM_ROWS).map((j) => infos.get(j)!);
+  // Below names: the first line fits and holds a number, and most of the next few are rows of numbers
+  // (so one ragged or mistyped row right under the header does not hide the header).
+  const confirmsHeader = (k: number, count: number): boolean => {
+    const window = windowAt(k);
+    const good = window.filter((w) => fits(w.cells, count) && isDataLike(w)).length;
+    return window.length > 0 && fits(window[0].cells, count) && window[0].numeric > 0 && good >= Math.ceil(window.length / 2);
   };
+  // Without names nothing anchors the table, so every line of the window must be a row of numbers.
+  const confirmsHeaderless = (k: number, count: number): boolean =>
+    windowAt(k).every((w) => fits(w.cells, count) && isDataLike(w));
+  const rowLike = (info: LineInfo, count: number): boolean => fits(info.cells, count) && info.numeric > 0;
   for (let k = 0; k < nonBlank.length; k++) {
     const i = nonBlank[k];
     const info = infos.get(i)!;
     if (isDataLike(info)) {
       // A file without names; a lone line of numbers in the preamble ("mass, 12.3, 0.1") is skipped.
       const count = usedLength(info.cells);
-      if (confirmed(k, count)) {
-        dataStart = i;
-        columnCount = count;
+      if (!confirmsHeaderless(k, count)) continue;
+      dataStart = i;
+      columnCount = count;
+      // Rows with mistakes may sit between the names and the first clean rows: walk back over them.
+      for (let b = k - 1; b >= 0; b--) {
+        const prev = infos.get(nonBlank[b])!;
+        if (rowLike(prev, count) && !isNameLine(prev)) continue;
+        const names = delimiter === "whitespace" ? headerCells(lines[nonBlank[b]], delimiter, count) : prev.cells;
+        if (isNameLine(prev) && fits(names, count) && b + 1 < k) {
+          headerIndex = nonBlank[b];
+          dataStart = nonBlank[b + 1];
+        }
         break;
       }
-      continue;
+      break;
     }
     if (!isNameLine(info) || k + 1 >= nonBlank.length) continue;
     const next = infos.get(nonBlank[k + 1])!;
@@ -233,7 +249,7 @@ export function readDelimited(text: string): DelimitedTable {
     const names = delimiter === "whitespace" ? headerCells(lines[i], delimiter, usedLength(next.cells)) : info.cells;
     const count = usedLength(names);
     if (count < 2) continue;
-    if (confirmed(k + 1, count)) {
+    if (confirmsHeader(k + 1, count)) {
       headerIndex = i;
       dataStart = nonBlank[k + 1];
       columnCount = count;
@@ -389,16 +405,14 @@ function parseNumber(cell: string, decimalMark: DecimalMark): number | { code: I
 
 function noRows(lines: readonly string[], nonBlank: readonly number[]): IngestError {
   const last = nonBlank[nonBlank.length - 1];
-  let widest = 0;
-  let allText = true;
-  for (const d of DELIMITERS) {
+  // Names without data: the last line splits into two or more text cells on a real delimiter, or
+  // carries a recognised unit ("Temperature (K)   Cp (J/K)").
+  const named = (["\t", ";", ","] as const).some((d) => {
     const info = analyse(lines[last], d);
-    if (usedLength(info.cells) > widest) {
-      widest = usedLength(info.cells);
-      allText = isNameLine(info);
-    }
-  }
-  if (widest >= 2 && allText) {
+    return usedLength(info.cells) >= 2 && isNameLine(info);
+  });
+  const withUnit = splitLine(lines[last], "whitespace").some((c) => /^[([].+[)\]]$/.test(c) && parseUnit(c.slice(1, -1)) !== null);
+  if (named || withUnit) {
     return new IngestError("NO_DATA_ROWS", "found column names but no data rows below them", last + 1);
   }
   return new IngestError("NO_NUMERIC_ROWS", "no rows with at least two numbers were found: is this a delimited export?");
