@@ -21,7 +21,7 @@ export function Component() {
     <>
       <title>Account · Thetafold</title>
       <PageHeader title="Your account" description="Sign-in details, password, and how this browser shows numbers." />
-      <div className="grid items-start gap-6 lg:grid-cols-2">
+      <div className="grid grid-cols-1 items-start gap-6 lg:grid-cols-2">
         <Card>
           <CardHeader title="Profile" />
           <CardBody>

@@ -60,7 +60,7 @@ export function DebyeCurveArt({ className }: { className?: string }) {
       <text x="398" y="258" textAnchor="end" fill="var(--color-ink-muted)" fontSize="13" fontFamily="var(--font-mono)">
         T/θ
       </text>
-      <path d={DEBYE_PATH} stroke={`url(#${gradientId})`} strokeWidth="4" fill="none" strokeLinecap="round" />
+      <path d={DEBYE_PATH} stroke={`url(#${gradientId})`} strokeWidth="3" fill="none" strokeLinecap="round" />
     </svg>
   );
 }

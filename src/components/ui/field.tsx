@@ -3,7 +3,7 @@ import { cn } from "@/lib/cn";
 
 const CONTROL =
   "block w-full rounded-lg border bg-surface px-3 text-sm text-ink placeholder:text-ink-muted " +
-  "focus-visible:outline-2 focus-visible:outline-offset-1 disabled:opacity-60";
+  "focus-visible:outline-2 focus-visible:outline-offset-1 disabled:opacity-60 read-only:bg-sunken read-only:text-ink-muted";
 
 interface FieldShellProps {
   id: string;

@@ -5,8 +5,13 @@ import { cn } from "@/lib/cn";
 import { DisplaySettings } from "./display-settings";
 import { Spinner } from "./spinner";
 
+/** "Dr. Ilse Marrow (demo lead)" → "IM": titles ending in a full stop and anything in parentheses are skipped. */
 function initials(name: string): string {
-  const parts = name.trim().split(/\s+/).filter(Boolean);
+  const parts = name
+    .replace(/\([^)]*\)/g, " ")
+    .trim()
+    .split(/\s+/)
+    .filter((part) => part && !part.endsWith("."));
   const letters = parts.length >= 2 ? parts[0][0] + parts[parts.length - 1][0] : (parts[0] ?? "?").slice(0, 2);
   return letters.toUpperCase();
 }

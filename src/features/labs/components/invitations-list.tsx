@@ -29,12 +29,13 @@ export function InvitationsList({ labId, invitations }: { labId: string; invitat
         {pending.map((invitation) => {
           const expired = new Date(invitation.expiresAt).getTime() < now;
           return (
-            <li key={invitation.id} className="flex flex-wrap items-center gap-x-4 gap-y-1 px-5 py-3 text-sm">
-              <span className="min-w-0 flex-1 truncate font-medium text-ink">{invitation.email}</span>
+            <li key={invitation.id} className="flex flex-wrap items-center gap-x-3 gap-y-1.5 px-5 py-3 text-sm">
+              <span className="w-full font-medium break-all text-ink">{invitation.email}</span>
               <RoleBadge role={invitation.role} />
               <span className={expired ? "text-danger" : "text-ink-muted"}>
                 {expired ? "Expired" : "Expires"} {formatDate(invitation.expiresAt)}
               </span>
+              <span className="flex-1" />
               <Button
                 size="sm"
                 variant="quiet"

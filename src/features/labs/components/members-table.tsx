@@ -147,7 +147,7 @@ function MemberRow({
                       })
                     }
                   >
-                    Remove<span className="sr-only"> {name}</span>
+                    Yes, remove<span className="sr-only"> {name}</span>
                   </Button>
                   <Button size="sm" variant="quiet" onClick={() => setConfirmingRemove(false)}>
                     Keep
@@ -157,12 +157,13 @@ function MemberRow({
                 <Button
                   size="sm"
                   variant="quiet"
+                  aria-label={`Remove ${name}`}
                   onClick={() => {
                     remove.reset();
                     setConfirmingRemove(true);
                   }}
                 >
-                  Remove<span className="sr-only"> {name}</span>…
+                  Remove…
                 </Button>
               ))}
           </td>
