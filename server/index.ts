@@ -12,6 +12,7 @@ import { users } from "./db/schema";
 import { readEnv, type Env } from "./env";
 import { createMailer } from "./mail/mailer";
 import { countUsers } from "./services/users";
+import { sweepOrphanFiles } from "./services/orphans";
 
 /** The repository root (this file is server/index.ts). */
 const ROOT = fileURLToPath(new URL("..", import.meta.url));
@@ -96,6 +97,7 @@ export async function startServer(env: Env = readEnv(), options: StartOptions = 
   ];
   try {
     runMigrations(db);
+    sweepOrphanFiles(db, dataDir, log);
     if (env.SEED !== "none" && countUsers(db) === 0) {
       await seedDemo(db, { password: env.DEMO_PASSWORD });
       log(`Seeded the demo lab into ${path.join(dataDir, "thetafold.db")}`);
