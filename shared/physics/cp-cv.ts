@@ -7,8 +7,8 @@
  *
  * Units: T in K; Cp, Cv in J/(mol·K); α_V volume expansivity in 1/K; B isothermal bulk modulus in Pa;
  * V_m molar volume in m³/mol; A in mol/J.
- * Source: the thermodynamic identity Cp − Cv = T V α_V² B_T (e.g. Kittel & Kroemer, Thermal Physics, 2nd ed.,
- * ch. 10 problems; Gopal, Specific Heats at Low Temperatures, ch. 1); W. Nernst and F. A. Lindemann,
+ * Source: the thermodynamic identity Cp − Cv = T V α_V² B_T (any thermodynamics text, e.g. Kittel & Kroemer,
+ * Thermal Physics, 2nd ed., 1980; E. S. R. Gopal, Specific Heats at Low Temperatures, 1966); W. Nernst and F. A. Lindemann,
  * Z. Elektrochem. 17, 817 (1911) for the one-constant form.
  * Valid: the dilation form is exact given α_V(T), B(T), V_m(T) at that T; the Nernst–Lindemann form assumes
  * α_V B V_m / Cp² stays constant, a fair approximation for many solids below their Debye temperature and above it.
@@ -21,7 +21,7 @@
  * @param molarVolume molar volume V_m in m³/mol (per mole of formula units)
  * @param temperatureK T in K
  * @returns Cp − Cv in J/(mol·K); NaN when B, V_m or T is negative or not finite
- * @see Kittel & Kroemer, Thermal Physics, 2nd ed. (1980), ch. 10
+ * @see Kittel & Kroemer, Thermal Physics, 2nd ed. (1980)
  */
 export function cpMinusCvDilation(
   alphaV: number,

@@ -8,9 +8,9 @@
  * For d = 3 this is C_D = 9 n_D R (T/θ_D)³ ∫₀^{θ_D/T} t⁴eᵗ/(eᵗ−1)² dt. D_d → 1 as x → 0 (Dulong–Petit,
  * 3 n_D R) and D_d → d Γ(d+2) ζ(d+1)/x^d as x → ∞ (for d = 3: (12π⁴/5) n_D R (T/θ_D)³).
  * Units: T in K; C in J/(mol·K) per mole of formula units; θ_D in K; n_D dimensionless.
- * Source: P. Debye, Ann. Phys. 39, 789 (1912), doi:10.1002/andp.19123441404; the d-dimensional form e.g.
- * V. V. Tarasov's layered/chain models as reviewed in A. M. Tari, The Specific Heat of Matter at Low
- * Temperatures (Imperial College Press, 2003), ch. 2.
+ * Source: P. Debye, Ann. Phys. 39, 789 (1912), doi:10.1002/andp.19123441404; the d-dimensional density of
+ * states g(ω) ∝ ω^{d−1} is the usual model of layered (d = 2) and chain (d = 1) lattices (V. V. Tarasov's
+ * models; e.g. A. Tari, The Specific Heat of Matter at Low Temperatures, Imperial College Press, 2003).
  * Valid for all x ≥ 0 (T > 0). Numerics, each branch exact to about 1e-15 relative (tested against mpmath):
  *  - 0 ≤ x ≤ 4: Chebyshev series in u = 2(x/4)² − 1 (coefficients from
  *    fixtures/physics/debye/generate-coefficients.py), summed by Clenshaw's recurrence;
@@ -147,7 +147,7 @@ export function debyeFunctionDerivative(x: number, dimension: DebyeDimension = 3
  * @param atomsN atoms n per formula unit
  * @param dimension lattice dimension d: 1, 2 or 3
  * @returns J/(mol·K) per mole of formula units; NaN for another dimension
- * @see P. Debye, Ann. Phys. 39, 789 (1912); Kittel, Introduction to Solid State Physics, 8th ed., eq. 5.35
+ * @see P. Debye, Ann. Phys. 39, 789 (1912); Kittel, Introduction to Solid State Physics, 8th ed., ch. 5 (Debye T³ law)
  */
 export function debyeLowTLimit(
   temperatureK: number,

@@ -5,8 +5,8 @@
  *   C_N(T) = A / T²
  *
  * Units: T in K; C in J/(mol·K) per mole of formula units; A (nuclearA) in J·K/(mol).
- * Source: the T ≫ Δ_nuclear expansion of a Schottky anomaly, e.g. E. S. R. Gopal, Specific Heats at
- * Low Temperatures (Plenum, 1966), ch. 5.
+ * Source: the T ≫ Δ_nuclear expansion of a Schottky anomaly (see schottky.ts), e.g. E. S. R. Gopal,
+ * Specific Heats at Low Temperatures (Plenum, 1966).
  * Valid only while k_B T is well above the nuclear level splitting (so not below ~10 mK). A is left
  * unbounded (see electronic.ts for why); it must not be used as a low-T model for entropy, since
  * ∫ A/T³ dT diverges at 0.

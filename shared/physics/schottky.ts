@@ -5,8 +5,8 @@
  *   C_S(T) = n_S R (Δ/T)² g e^{Δ/T} / (1 + g e^{Δ/T})²,   g = g₀/g₁
  *
  * Units: T in K; C in J/(mol·K) per mole of formula units; Δ (gap) in K; n_S and g (gRatio) dimensionless.
- * Source: W. Schottky, Phys. Z. 23, 448 (1922); in this form E. S. R. Gopal, Specific Heats at Low
- * Temperatures (Plenum, 1966), ch. 5, and A. Tari, The Specific Heat of Matter at Low Temperatures (2003), ch. 7.
+ * Source: W. Schottky, Phys. Z. 23, 448 (1922); in this form e.g. E. S. R. Gopal, Specific Heats at Low
+ * Temperatures (Plenum, 1966) and A. Tari, The Specific Heat of Matter at Low Temperatures (2003).
  * Valid for any T > 0, Δ ≥ 0, g > 0. Evaluated overflow-free: with w = g e^{Δ/T}, w/(1+w)² is symmetric
  * under w → 1/w, so it is computed from v = e^{−|ln g + Δ/T|} ≤ 1 as v/(1+v)².
  */

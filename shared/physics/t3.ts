@@ -6,7 +6,7 @@
  *
  * Units: T in K; C in J/(mol·K) per mole of formula units; β (beta) in J/(mol·K⁴).
  * Source: P. Debye, Ann. Phys. 39, 789 (1912); Kittel, Introduction to Solid State Physics, 8th ed.,
- * ch. 5, eq. 35.
+ * ch. 5 (Debye T³ law).
  * Valid at low T only (below about θ_D/50 the Debye function and βT³ agree to 1%). β is left unbounded
  * so that a small negative correction term can be fitted beside a Debye or Einstein component.
  */

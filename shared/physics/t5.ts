@@ -6,7 +6,7 @@
  *
  * Units: T in K; C in J/(mol·K) per mole of formula units; δ (delta) in J/(mol·K⁶).
  * Source: the harmonic-lattice low-T expansion C = Σ a_k T^{2k+1}, e.g. E. S. R. Gopal, Specific Heats
- * at Low Temperatures (Plenum, 1966), ch. 2.
+ * at Low Temperatures (Plenum, 1966).
  * Valid at low T (roughly below θ_D/20); δ may take either sign.
  */
 import type { ParamSpec } from "./model-types";

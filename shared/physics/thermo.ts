@@ -10,7 +10,7 @@
  * width away from T = 0, else by the closed form with the logarithm).
  * Units: T in K; C in J/(mol·K); S in J/(mol·K); H − H(0) in J/mol (per mole of formula units when C is).
  * Source: the third law with S(0) = 0 for an ordered crystal (common practice, no source); e.g.
- * E. S. R. Gopal, Specific Heats at Low Temperatures (Plenum, 1966), ch. 1.
+ * E. S. R. Gopal, Specific Heats at Low Temperatures (Plenum, 1966).
  * Valid from 0 K to the last data point (no extrapolation above it). The low-T model must make C/T
  * integrable at 0 (a nuclear A/T² tail is not: its entropy diverges).
  */

@@ -124,7 +124,7 @@ export function thetaDCurve(
  * @param beta β in J/(mol·K⁴) per mole of formula units (> 0)
  * @param atomsN atoms per formula unit n
  * @returns θ_D in K; NaN when β ≤ 0 or n ≤ 0
- * @see Kittel, Introduction to Solid State Physics, 8th ed., ch. 5, eq. 35
+ * @see Kittel, Introduction to Solid State Physics, 8th ed., ch. 5 (Debye T³ law)
  */
 export function thetaDFromBeta(beta: number, atomsN: number): number {
   if (!(beta > 0) || !(atomsN > 0)) return Number.NaN;
@@ -136,7 +136,7 @@ export function thetaDFromBeta(beta: number, atomsN: number): number {
  * @param thetaD θ_D in K (> 0)
  * @param atomsN atoms per formula unit n
  * @returns β in J/(mol·K⁴); NaN when θ_D ≤ 0 or n < 0
- * @see Kittel, Introduction to Solid State Physics, 8th ed., ch. 5, eq. 35
+ * @see Kittel, Introduction to Solid State Physics, 8th ed., ch. 5 (Debye T³ law)
  */
 export function betaFromThetaD(thetaD: number, atomsN: number): number {
   if (!(thetaD > 0) || !(atomsN >= 0)) return Number.NaN;

@@ -3,7 +3,7 @@ import { AVOGADRO, BOLTZMANN, GAS_CONSTANT, PLANCK, dulongPetit } from "@shared/
 import { expectClose } from "../../helpers/expect-close";
 
 describe("CODATA 2018 constants", () => {
-  it("holds the exact defining values of k_B, N_A and h (CODATA 2018, Rev. Mod. Phys. 93, 025010, Table XXIX)", () => {
+  it("holds the exact defining values of k_B, N_A and h (CODATA 2018, Tiesinga et al., Rev. Mod. Phys. 93, 025010 (2021))", () => {
     expect(BOLTZMANN).toBe(1.380649e-23);
     expect(AVOGADRO).toBe(6.02214076e23);
     expect(PLANCK).toBe(6.62607015e-34);

@@ -24,7 +24,7 @@ describe("debyeFunction: published values", () => {
     expectClose(debyeFunction(1), 0.952, { rel: 6e-4 }); // the table value has 3 digits
   });
 
-  it("gives the T³-law coefficient 12π⁴/5 = 233.78 (Kittel, Introduction to Solid State Physics, 8th ed., eq. 5.35 '≈ 234 N k_B (T/θ)³', from memory)", () => {
+  it("gives the T³-law coefficient 12π⁴/5 = 233.78 (Kittel, Introduction to Solid State Physics, 8th ed., ch. 5, T³ law '≈ 234 N k_B (T/θ)³', from memory)", () => {
     const x = 1e3;
     // C/(nR) at T/θ = 1e-3 divided by (T/θ)³: 3·D_3(x)·x³
     expectClose(3 * debyeFunction(x) * x ** 3, 233.78, { rel: 5e-5 }); // 233.78 is given to 5 digits

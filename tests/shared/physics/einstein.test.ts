@@ -20,8 +20,8 @@ const fixture = JSON.parse(
 ) as { data: Row[] };
 
 describe("einsteinFunction: published coefficients", () => {
-  // E(x) = (x/2)²/sinh²(x/2) = 1 − x²/12 + x⁴/240 − …, the coefficients being −(2k−1)B_2k/(2k)!·… from the
-  // Bernoulli numbers B_2 = 1/6, B_4 = −1/30 (Abramowitz & Stegun, Table 23.2).
+  // E(x) = 1 − Σ_k (2k−1) B_2k x^{2k}/(2k)! = 1 − x²/12 + x⁴/240 − …, with the Bernoulli numbers
+  // B_2 = 1/6, B_4 = −1/30 (Abramowitz & Stegun, Table 23.2).
   it("follows 1 − x²/12 + x⁴/240 at small x (A&S Table 23.2 Bernoulli numbers)", () => {
     for (const x of [1e-3, 1e-2, 0.05]) {
       expectClose(einsteinFunction(x), 1 - (x * x) / 12 + (x ** 4) / 240, { rel: 1e-15 + x ** 6 / 6000 });

@@ -4,7 +4,7 @@ import { expectClose } from "../../helpers/expect-close";
 import { checkJacobian } from "./jacobian-check";
 
 describe("electronic term γT", () => {
-  it("gives 0.695 mJ/(mol·K) at 1 K for copper's γ = 0.695 mJ/(mol·K²) (Kittel, ISSP 8th ed., Table 6.3, from memory)", () => {
+  it("is γT (definition; e.g. copper's γ = 0.695 mJ/(mol·K²), Kittel ISSP 8th ed., ch. 6 table of γ, from memory)", () => {
     expectClose(evaluate([0.695e-3], 1), 0.695e-3, { rel: 1e-15 });
     expectClose(evaluate([0.695e-3], 10), 6.95e-3, { rel: 1e-15 });
   });

@@ -20,7 +20,7 @@ function integrateLog(f: (t: number) => number, a: number, b: number, n = 4000):
 }
 
 describe("two-level Schottky anomaly: published values", () => {
-  it("peaks at C ≈ 0.439 R near T ≈ 0.417 Δ for equal degeneracies (Gopal, Specific Heats at Low Temperatures, ch. 5, from memory)", () => {
+  it("peaks at C ≈ 0.439 R near T ≈ 0.417 Δ for equal degeneracies (Gopal, Specific Heats at Low Temperatures, 1966, from memory)", () => {
     const gap = 10;
     let best = 0;
     let bestT = 0;

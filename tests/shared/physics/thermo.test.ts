@@ -143,8 +143,8 @@ describe("copper: S and H − H(0) at 298.15 K from a published Cp curve", () =>
   };
   // 4 K to 298.15 K, 300 points log-spaced (the fit's own range is 4–300 K).
   const ts = Array.from({ length: 300 }, (_, i) => 4 * (298.15 / 4) ** (i / 299));
-  // Below 4 K: γT + βT³ with Cu γ = 0.695 mJ/(mol·K²) (Kittel ISSP Table 6.3) and β from θ_D = 343 K
-  // (Kittel ISSP Table 5.1), both from memory; that part contributes only ~0.01% of S(298.15).
+  // Below 4 K: γT + βT³ with Cu γ = 0.695 mJ/(mol·K²) (Kittel ISSP 8th ed., ch. 6 table of γ) and β from
+  // θ_D = 343 K (Kittel ISSP ch. 5 Table 1), both from memory; that part contributes only ~0.01% of S(298.15).
   const lowT = { gamma: 0.695e-3, beta: debyeLowTLimit(1, 343, 1) };
 
   it("matches the CODATA key values S° = 33.15 J/(mol·K) and H° − H°(0) = 5.004 kJ/mol within 2%", () => {

@@ -7,7 +7,7 @@ import { expectClose } from "../../helpers/expect-close";
 const R = GAS_CONSTANT;
 
 describe("thetaDFromBeta: textbook elements", () => {
-  it("gives θ_D = 91 K for potassium from C/T = 2.08 + 2.57 T² mJ/(mol·K²) (Kittel, ISSP 8th ed., ch. 6 fig. 9 and Table 5.1 θ_D = 91 K, from memory)", () => {
+  it("gives θ_D = 91 K for potassium from C/T = 2.08 + 2.57 T² mJ/(mol·K²) (Kittel, ISSP 8th ed.: ch. 6 figure of potassium C/T against T², and ch. 5 Table 1 θ_D = 91 K; from memory)", () => {
     expectClose(thetaDFromBeta(2.57e-3, 1), 91, { rel: 6e-3 }); // the table rounds θ_D to 1 K
   });
 
@@ -15,7 +15,7 @@ describe("thetaDFromBeta: textbook elements", () => {
     expectClose(thetaDFromBeta(1e-4, 8), 2 * thetaDFromBeta(1e-4, 1), { rel: 1e-15 });
   });
 
-  it("inverts betaFromThetaD, and β·θ³ = (12π⁴/5)R = 233.78 R (T³ law, Kittel ISSP 8th ed. eq. 5.35, from memory)", () => {
+  it("inverts betaFromThetaD, and β·θ³ = (12π⁴/5)R = 233.78 R (T³ law, Kittel ISSP 8th ed. ch. 5, from memory)", () => {
     expectClose(betaFromThetaD(1, 1) / R, 233.78, { rel: 5e-5 }); // 233.78 has 5 digits
     for (const t of [91, 343, 2230]) expectClose(thetaDFromBeta(betaFromThetaD(t, 3), 3), t, { rel: 1e-15 });
   });
