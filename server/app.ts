@@ -20,6 +20,7 @@ import { comparisonsRouter } from "./routes/comparisons";
 import { batchesRouter } from "./routes/batches";
 import { importPresetsRouter } from "./routes/import-presets";
 import { runsRouter } from "./routes/runs";
+import { fitsRouter } from "./routes/fits";
 import { samplesRouter } from "./routes/samples";
 import { bundlesRouter } from "./routes/bundles";
 import { sharedRouter } from "./routes/shared";
@@ -52,6 +53,7 @@ export function createApp(deps: AppDeps): express.Express {
   app.use("/api", batchesRouter(ctx));
   app.use("/api", samplesRouter(ctx));
   app.use("/api", runsRouter(ctx));
+  app.use("/api", fitsRouter(ctx));
   app.use("/api", importPresetsRouter(ctx));
   app.use("/api", compareRouter(ctx));
   app.use("/api", comparisonsRouter(ctx));

@@ -98,12 +98,8 @@ export type CreateFitBody = z.infer<typeof CreateFitBody>;
 export const FitStateSchema = z.enum(["draft", "approved", "superseded"]);
 export type FitState = z.infer<typeof FitStateSchema>;
 
-/** One plain-word warning about a fit. */
-export const FitWarningSchema = z.object({
-  code: z.string(),
-  message: z.string(),
-  parameters: z.array(z.string()).optional(),
-});
+/** One plain-word warning about a fit (not converged, a parameter at its bound, |r| > 0.95, χ²_red far from 1, atoms not adding up…). */
+export const FitWarningSchema = z.string();
 export type FitWarning = z.infer<typeof FitWarningSchema>;
 
 /** One parameter of a fit (also a row of fit_parameters). Uncertainties are standard uncertainties in the parameter's unit. */
@@ -156,8 +152,10 @@ export const FitOutcomeSchema = z.object({
   parameters: z.array(FitParameterSchema),
   /** Names of the free parameters, in the order of the covariance and correlation rows. */
   freeParameters: z.array(z.string()),
-  covariance: z.array(z.array(z.number().nullable())),
-  correlation: z.array(z.array(z.number().nullable())),
+  /** Scaled covariance s²(JᵀWJ)⁻¹ of the free parameters; null when the data cannot separate them (singular). */
+  covariance: z.array(z.array(z.number())).nullable(),
+  /** Correlation matrix of the free parameters; null when the covariance is. */
+  correlation: z.array(z.array(z.number().nullable())).nullable(),
   warnings: z.array(FitWarningSchema),
   /** How σ was chosen: "stated" (each point's σ) or a rule for points without one. */
   weighting: z.string(),
