@@ -24,9 +24,9 @@
  *
  * Covariance at the solution: C = (JᵀWJ)⁻¹ with W = diag(1/σ²) ("unscaled", right when σ are true
  * standard uncertainties) and s²·C with s² = χ²/(N − k) ("scaled", the usual choice when σ are only
- * relative). It is formed from the SVD of the whitened, column-normalised Jacobian (ml-matrix), which
- * avoids squaring the condition number; a numerically rank-deficient Jacobian (smallest/largest
- * singular value < 1e-12) gives covariance null: the free parameters cannot be separated by the data.
+ * relative). It is formed from the Householder QR of the whitened, column-normalised Jacobian and the
+ * SVD (ml-matrix) of its small triangular factor, which avoids squaring the condition number; a numerically rank-deficient Jacobian (smallest/largest
+ * singular value below 1e-12, or 1e-8 with a finite-difference Jacobian) gives covariance null: the free parameters cannot be separated by the data.
  * See Press et al., Numerical Recipes 3rd ed., §15.4–15.5; Bevington & Robinson, Data Reduction and
  * Error Analysis, 3rd ed., ch. 8.
  *
@@ -35,7 +35,7 @@
  */
 import { levenbergMarquardt } from "ml-levenberg-marquardt";
 import { Matrix, SingularValueDecomposition } from "ml-matrix";
-import { choleskySolve } from "@shared/fitting/small-linear-algebra";
+import { choleskySolve, householderQR } from "@shared/fitting/small-linear-algebra";
 
 /** y = f(x; p) for the full parameter vector p (fixed ones included). */
 export type ModelFunction = (params: readonly number[], x: number) => number;
@@ -123,9 +123,17 @@ export interface LeastSquaresResult {
 
 const EPSILON = Number.EPSILON;
 const FD_STEP = Math.cbrt(EPSILON);
-const RANK_TOLERANCE = 1e-12;
-const BACKTRACK_STEPS = 6;
-/** A full Gauss–Newton step that predicted less than this fraction of χ² and still could not lower it: the rounding floor. */
+/**
+ * Smallest/largest singular value of the column-normalised Jacobian below which the covariance is
+ * reported as null: 1e-12 with an analytic Jacobian; 1e-8 with finite differences, whose own relative
+ * error (about 1e-11 for the five-point stencil, 1e-10 three-point) would otherwise make exactly
+ * dependent columns look independent.
+ */
+const RANK_TOLERANCE_ANALYTIC = 1e-12;
+const RANK_TOLERANCE_FINITE_DIFFERENCE = 1e-8;
+/** In one of our own steps a parameter moves at most |p_j| + this many 1/D_j (its statistical scale). */
+const STEP_CAP_SCALES = 10;
+/** No damped step lowers χ², and Gauss–Newton predicts less than this fraction of it: the rounding floor. */
 const ROUNDING_FLOOR = 1e-9;
 
 function checkNumberArray(value: unknown, name: string, length: number | null): asserts value is readonly number[] {
@@ -242,14 +250,20 @@ export function fitLeastSquares(
     return full;
   };
 
+  // The whitened residuals of the last χ² evaluation, so that linearising at an accepted trial point
+  // (the same array) does not evaluate the model there a second time.
+  let lastTrial: { q: ArrayLike<number>; r: Float64Array; chi2: number } | null = null;
   const chiSquareOf = (q: ArrayLike<number>): number => {
     const full = toFull(q);
+    const r = new Float64Array(n);
     let sum = 0;
     for (let i = 0; i < n; i++) {
-      const r = yWhite[i] - model(full, x[i]) * invSigma[i];
-      sum += r * r;
+      r[i] = yWhite[i] - model(full, x[i]) * invSigma[i];
+      sum += r[i] * r[i];
     }
-    return Number.isFinite(sum) ? sum : NaN;
+    const chi2 = Number.isFinite(sum) ? sum : NaN;
+    lastTrial = { q, r, chi2 };
+    return chi2;
   };
 
   /** ∂f/∂q_j (unwhitened) at x for the free parameters, analytic or by central differences. */
@@ -314,16 +328,20 @@ export function fitLeastSquares(
   const linearise = (q: readonly number[]) => {
     const full = toFull(q);
     const grad = gradientAt(full);
-    const r = new Float64Array(n);
+    const known = lastTrial !== null && lastTrial.q === q ? lastTrial : null;
+    const r = known === null ? new Float64Array(n) : known.r;
     const jac = new Float64Array(n * k);
     let chi2 = 0;
     for (let i = 0; i < n; i++) {
       const s = invSigma[i];
-      r[i] = yWhite[i] - model(full, x[i]) * s;
-      chi2 += r[i] * r[i];
+      if (known === null) {
+        r[i] = yWhite[i] - model(full, x[i]) * s;
+        chi2 += r[i] * r[i];
+      }
       const g = grad(x[i]);
       for (let j = 0; j < k; j++) jac[i * k + j] = g[j] * s;
     }
+    if (known !== null) chi2 = known.chi2;
     return { r, jac, chi2: Number.isFinite(chi2) ? chi2 : NaN };
   };
 
@@ -337,10 +355,19 @@ export function fitLeastSquares(
 
   const clampToBounds = (q: number[]): number[] => q.map((v, j) => Math.min(Math.max(v, lo[j]), hi[j]));
 
-  const finish = (q: readonly number[], iterations: number, converged: boolean, stopReason: StopReason) =>
+  const finish = (
+    q: readonly number[],
+    iterations: number,
+    converged: boolean,
+    stopReason: StopReason,
+    jacobianAtSolution: Float64Array | null = null,
+  ) =>
     buildResult({
       q, iterations, converged, stopReason, n, k, p, free, initial, x, y, invSigma, model,
-      linearise, sigmaGiven: sigma !== null, lo, hi,
+      jacobianAtSolution: jacobianAtSolution ?? (k > 0 ? linearise(q).jac : new Float64Array(0)),
+      whitenedResiduals: lastTrial !== null && lastTrial.q === q ? lastTrial.r : null,
+      sigmaGiven: sigma !== null, lo, hi,
+      rankTolerance: jacobian === undefined ? RANK_TOLERANCE_FINITE_DIFFERENCE : RANK_TOLERANCE_ANALYTIC,
     });
 
   if (k === 0) return finish([], 0, true, "no-free-parameters");
@@ -382,8 +409,12 @@ export function fitLeastSquares(
   };
 
   let iterations = 0;
-  let burst = 4;
+  let burst = 2;
+  /** The Jacobian to build the covariance from: the last linearisation, if the step after it was negligible. */
+  let finalJacobian: Float64Array | null = null;
   let stalledRounds = 0;
+  let mu = 1e-3;
+  let nu = 2;
   let stopReason: StopReason | null = null;
 
   while (stopReason === null) {
@@ -405,49 +436,87 @@ export function fitLeastSquares(
       jacobianFunction: packageJacobian,
     });
     iterations += Math.max(run.iterations, 1);
+    // With unit weights on whitened data the package's parameterError is exactly χ² at its best point.
     const candidate = clampToBounds(run.parameterValues.map((v, j) => v / scale[j]));
-    if (candidate.every(Number.isFinite)) {
-      const chi2Candidate = chiSquareOf(candidate);
-      if (chi2Candidate < chi2) {
-        q = candidate;
-        chi2 = chi2Candidate;
-      }
+    if (candidate.every(Number.isFinite) && run.parameterError < chi2) {
+      q = candidate;
+      chi2 = run.parameterError;
     }
 
-    // 2. Our own Gauss–Newton steps with backtracking; they also decide convergence.
+    // 2. Our own steps: the undamped Gauss–Newton prediction decides convergence; Marquardt-damped
+    //    steps with rejection (Nielsen's damping update, IMM report 1999) make the progress.
     while (stopReason === null && iterations < maxIterations) {
       state = linearise(q);
       if (!Number.isFinite(state.chi2)) break;
       chi2 = state.chi2;
       updateScale(state.jac);
       if (chi2 <= 1e-28 * yScale) {
+        finalJacobian = state.jac;
         stopReason = "exact-fit";
         break;
       }
-      const step = gaussNewtonStep(state.jac, state.r, q, lo, hi, n, k);
-      if (step === null) break;
+      const ne = normalEquations(state.jac, state.r, q, lo, hi, n, k);
       iterations++;
-      const stationary = step.predictedDecrease <= tolerance * chi2;
-      let accepted = false;
-      for (let t = 1, tries = 0; tries <= BACKTRACK_STEPS; t /= 2, tries++) {
-        const trial = clampToBounds(q.map((v, j) => v + t * step.delta[j]));
-        const chi2Trial = chiSquareOf(trial);
+      const gaussNewton = dampedStep(ne, 0, k);
+      const predicted = gaussNewton === null ? Infinity : Math.max(gaussNewton.gTdelta, 0);
+      if (gaussNewton !== null && predicted <= tolerance * chi2) {
         // At the minimum χ² is flat to rounding, so comparing χ² resolves parameters only to about
-        // √ε standard errors; a stationary step is then more accurate than the comparison, and is
-        // taken unless it raises χ² beyond rounding.
-        if (chi2Trial < chi2 || (stationary && chi2Trial <= chi2 * (1 + 1e-12))) {
-          accepted = true;
+        // √ε standard errors; the stationary step is more accurate than that comparison and is taken
+        // unless it raises χ² beyond rounding. The Jacobian just computed is the one at the solution.
+        const trial = clampToBounds(q.map((v, j) => v + gaussNewton.delta[j]));
+        const chi2Trial = chiSquareOf(trial);
+        if (chi2Trial <= chi2 * (1 + 1e-12)) {
           q = trial;
           chi2 = chi2Trial;
-          break;
         }
-        if (stationary) break;
-      }
-      if (stationary || (!accepted && step.predictedDecrease <= ROUNDING_FLOOR * chi2)) {
-        stopReason = chi2 <= 1e-28 * yScale ? "exact-fit" : "chi-square-stationary";
+        finalJacobian = state.jac;
+        stopReason = "chi-square-stationary";
         break;
       }
-      if (!accepted) break;
+      let accepted = false;
+      for (let tries = 0; tries < 12 && !accepted; tries++) {
+        const step = mu === 0 ? gaussNewton : dampedStep(ne, mu, k);
+        if (step === null) {
+          mu = Math.max(mu, 1e-6) * nu;
+          nu *= 2;
+          continue;
+        }
+        // Trust-region safeguard: no parameter moves by more than its own size plus a few of its
+        // statistical scales (1/D_j) in one step; a longer step is shortened along its direction.
+        let shrink = 1;
+        for (let j = 0; j < k; j++) {
+          const cap = Math.abs(q[j]) + STEP_CAP_SCALES / scale[j];
+          if (Math.abs(step.delta[j]) > cap) shrink = Math.min(shrink, cap / Math.abs(step.delta[j]));
+        }
+        const trial = clampToBounds(q.map((v, j) => v + shrink * step.delta[j]));
+        const chi2Trial = chiSquareOf(trial);
+        // Predicted decrease of the linearised χ² for this step: 2gᵀδ − δᵀJᵀJδ.
+        const model = 2 * shrink * step.gTdelta - shrink * shrink * step.quadratic;
+        const rho = model > 0 ? (chi2 - chi2Trial) / model : -1;
+        if (chi2Trial < chi2 && rho > 0) {
+          q = trial;
+          chi2 = chi2Trial;
+          accepted = true;
+          mu = mu * Math.max(1 / 3, 1 - (2 * rho - 1) ** 3);
+          if (mu < 1e-12) mu = 0;
+          nu = 2;
+        } else {
+          mu = Math.max(mu, 1e-6) * nu;
+          nu *= 2;
+        }
+      }
+      if (!accepted) {
+        if (predicted <= ROUNDING_FLOOR * chi2) {
+          // Not even tiny damped steps lower χ², and the Gauss–Newton model predicts a decrease at the
+          // rounding level: this is the minimum to working precision.
+          finalJacobian = state.jac;
+          stopReason = "chi-square-stationary";
+        }
+        // Otherwise hand back to the package for another burst.
+        mu = 1e-3;
+        nu = 2;
+        break;
+      }
     }
     if (stopReason !== null) break;
 
@@ -459,15 +528,21 @@ export function fitLeastSquares(
   }
 
   const converged = stopReason === "chi-square-stationary" || stopReason === "exact-fit";
-  return finish(q, iterations, converged, stopReason);
+  return finish(q, iterations, converged, stopReason, finalJacobian);
 }
 
-/**
- * Gauss–Newton step on the free parameters that are not held at a bound by the gradient, solved on the
- * normal equations scaled to unit diagonal; a tiny ridge is added only if they are not positive
- * definite. Returns null when no step can be formed.
- */
-function gaussNewtonStep(
+interface NormalEquations {
+  /** JᵀJ (lower triangle filled), k×k */
+  a: number[][];
+  /** Jᵀr */
+  g: number[];
+  /** Free parameters that may move: not held on a bound by the gradient, and with a nonzero column. */
+  active: number[];
+  /** √(JᵀJ)_jj of the active parameters, for the unit-diagonal scaling. */
+  d: number[];
+}
+
+function normalEquations(
   jac: Float64Array,
   r: Float64Array,
   q: readonly number[],
@@ -475,7 +550,7 @@ function gaussNewtonStep(
   hi: readonly number[],
   n: number,
   k: number,
-): { delta: number[]; predictedDecrease: number } | null {
+): NormalEquations {
   const a: number[][] = Array.from({ length: k }, () => new Array<number>(k).fill(0));
   const g = new Array<number>(k).fill(0);
   for (let i = 0; i < n; i++) {
@@ -492,27 +567,38 @@ function gaussNewtonStep(
     const blocked = (q[j] <= lo[j] && g[j] <= 0) || (q[j] >= hi[j] && g[j] >= 0);
     if (!blocked && a[j][j] > 0 && Number.isFinite(a[j][j])) active.push(j);
   }
+  return { a, g, active, d: active.map((j) => Math.sqrt(a[j][j])) };
+}
+
+/**
+ * Solves (JᵀJ + μ·diag(JᵀJ))·δ = Jᵀr on the active parameters (Marquardt's scale-invariant damping; μ = 0
+ * is the Gauss–Newton step), scaled to unit diagonal for the Cholesky solve. Returns δ with
+ * gᵀδ (the Gauss–Newton predicted χ² decrease when μ = 0) and δᵀJᵀJδ, or null if the system is not
+ * numerically positive definite.
+ */
+function dampedStep(ne: NormalEquations, mu: number, k: number): { delta: number[]; gTdelta: number; quadratic: number } | null {
+  const { a, g, active, d } = ne;
   const delta = new Array<number>(k).fill(0);
-  if (active.length === 0) return { delta, predictedDecrease: 0 };
-  const d = active.map((j) => Math.sqrt(a[j][j]));
-  const b = active.map((j, i) => g[j] / d[i]);
-  for (const ridge of [0, 1e-12, 1e-9, 1e-6, 1e-3]) {
-    const m = active.map((j, i) =>
-      active.map((l, c) => {
-        const v = (j >= l ? a[j][l] : a[l][j]) / (d[i] * d[c]);
-        return i === c ? v + ridge : v;
-      }),
-    );
-    const solution = choleskySolve(m, b);
-    if (solution === null || !solution.every(Number.isFinite)) continue;
-    let predicted = 0;
-    active.forEach((j, i) => {
-      delta[j] = solution[i] / d[i];
-      predicted += g[j] * delta[j];
-    });
-    return { delta, predictedDecrease: Math.max(predicted, 0) };
-  }
-  return null;
+  if (active.length === 0) return { delta, gTdelta: 0, quadratic: 0 };
+  const m = active.map((j, i) =>
+    active.map((l, c) => {
+      const v = (j >= l ? a[j][l] : a[l][j]) / (d[i] * d[c]);
+      return i === c ? v * (1 + mu) : v;
+    }),
+  );
+  const solution = choleskySolve(
+    m,
+    active.map((j, i) => g[j] / d[i]),
+  );
+  if (solution === null || !solution.every(Number.isFinite)) return null;
+  let gTdelta = 0;
+  active.forEach((j, i) => {
+    delta[j] = solution[i] / d[i];
+    gTdelta += g[j] * delta[j];
+  });
+  let quadratic = 0;
+  for (const j of active) for (const l of active) quadratic += delta[j] * (j >= l ? a[j][l] : a[l][j]) * delta[l];
+  return { delta, gTdelta, quadratic };
 }
 
 interface BuildArgs {
@@ -529,7 +615,10 @@ interface BuildArgs {
   y: readonly number[];
   invSigma: Float64Array;
   model: ModelFunction;
-  linearise: (q: readonly number[]) => { r: Float64Array; jac: Float64Array; chi2: number };
+  jacobianAtSolution: Float64Array;
+  /** (y − f)/σ at q when already known. */
+  whitenedResiduals: Float64Array | null;
+  rankTolerance: number;
   sigmaGiven: boolean;
   lo: readonly number[];
   hi: readonly number[];
@@ -539,7 +628,8 @@ function buildResult(args: BuildArgs): LeastSquaresResult {
   const { q, n, k, p, free, initial, x, y, model, sigmaGiven } = args;
   const params = initial.slice();
   for (let j = 0; j < k; j++) params[free[j]] = q[j];
-  const residuals = x.map((xi, i) => y[i] - model(params, xi));
+  const known = args.whitenedResiduals;
+  const residuals = known === null ? x.map((xi, i) => y[i] - model(params, xi)) : Array.from(known, (r, i) => r / args.invSigma[i]);
   let chiSquare = 0;
   for (let i = 0; i < n; i++) {
     const rw = residuals[i] * args.invSigma[i];
@@ -550,8 +640,7 @@ function buildResult(args: BuildArgs): LeastSquaresResult {
 
   let covarianceUnscaled: number[][] | null = null;
   if (k > 0) {
-    const { jac } = args.linearise(q);
-    covarianceUnscaled = freeCovariance(jac, n, k, free, p);
+    covarianceUnscaled = freeCovariance(args.jacobianAtSolution, n, k, free, p, args.rankTolerance);
   } else {
     covarianceUnscaled = Array.from({ length: p }, () => new Array<number>(p).fill(0));
   }
@@ -615,21 +704,33 @@ function buildResult(args: BuildArgs): LeastSquaresResult {
   };
 }
 
-/** (JᵀJ)⁻¹ of the whitened Jacobian via the SVD of its column-normalised form, embedded in p×p. */
-function freeCovariance(jac: Float64Array, n: number, k: number, free: readonly number[], p: number): number[][] | null {
+/**
+ * (JᵀJ)⁻¹ of the whitened Jacobian, embedded in p×p. J is column-normalised and QR-factorised
+ * (Householder), then the small k×k factor R goes through ml-matrix's SVD: JᵀJ = RᵀR = V·S²·Vᵀ, so
+ * (JᵀJ)⁻¹ = V·S⁻²·Vᵀ with S the singular values of J itself (no squared condition number), at O(N·k²).
+ */
+function freeCovariance(
+  jac: Float64Array,
+  n: number,
+  k: number,
+  free: readonly number[],
+  p: number,
+  rankTolerance: number,
+): number[][] | null {
   const norms = new Array<number>(k).fill(0);
   for (let i = 0; i < n; i++) for (let j = 0; j < k; j++) norms[j] += jac[i * k + j] * jac[i * k + j];
   for (let j = 0; j < k; j++) {
     norms[j] = Math.sqrt(norms[j]);
     if (!(norms[j] > 0) || !Number.isFinite(norms[j])) return null;
   }
-  const m = new Matrix(n, k);
-  for (let i = 0; i < n; i++) for (let j = 0; j < k; j++) m.set(i, j, jac[i * k + j] / norms[j]);
-  const svd = new SingularValueDecomposition(m, { computeLeftSingularVectors: false });
+  const scaled = new Float64Array(n * k);
+  for (let i = 0; i < n; i++) for (let j = 0; j < k; j++) scaled[i * k + j] = jac[i * k + j] / norms[j];
+  const { r } = householderQR(scaled, n, k);
+  const svd = new SingularValueDecomposition(new Matrix(r), { computeLeftSingularVectors: false });
   const s = svd.diagonal;
   const v = svd.rightSingularVectors;
   const sMax = Math.max(...s);
-  if (!(sMax > 0) || s.some((si) => !(si > RANK_TOLERANCE * sMax))) return null;
+  if (!(sMax > 0) || s.some((si) => !(si > rankTolerance * sMax))) return null;
   const out = Array.from({ length: p }, () => new Array<number>(p).fill(0));
   for (let a = 0; a < k; a++) {
     for (let b = 0; b < k; b++) {

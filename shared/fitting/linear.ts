@@ -2,14 +2,16 @@
  * Weighted linear least squares y ≈ X·b with covariance, and the low-temperature heat-capacity line
  * C/T = γ + β·T² (+ δ·T⁴) fitted against T², with θ_D from β.
  *
- * The solution goes through the SVD of the whitened, column-normalised design matrix (ml-matrix):
- * b = V·S⁻¹·Uᵀ·ỹ and C = (XᵀWX)⁻¹ = V·S⁻²·Vᵀ, never through the normal equations, whose condition number
- * is the square of X's (T² and T⁴ columns over a decade of temperature are strongly collinear).
+ * The solution goes through the Householder QR of the whitened, column-normalised design matrix and the
+ * SVD (ml-matrix) of its k×k factor R = U·S·Vᵀ: b = V·S⁻¹·Uᵀ·Qᵀỹ and C = (XᵀWX)⁻¹ = V·S⁻²·Vᵀ, never the
+ * normal equations, whose condition number is the square of X's (T² and T⁴ columns over a decade of
+ * temperature are strongly collinear).
  * See Press et al., Numerical Recipes 3rd ed. (2007) §15.4.2; Bevington & Robinson, Data Reduction and
  * Error Analysis, 3rd ed., ch. 6–7.
  */
 import { Matrix, SingularValueDecomposition } from "ml-matrix";
 import { GAS_CONSTANT } from "@shared/physics/constants";
+import { householderQR } from "@shared/fitting/small-linear-algebra";
 
 export interface LinearFitResult {
   /** Fitted coefficients, in the order of the design matrix columns. */
@@ -82,13 +84,14 @@ export function fitLinearLeastSquares(
     norms[j] = Math.sqrt(norms[j]);
     if (!(norms[j] > 0)) throw new RangeError(`design column ${j} is zero at every point: the data do not determine it`);
   }
-  const a = new Matrix(n, k);
-  const yw = new Array<number>(n);
+  const a = new Float64Array(n * k);
+  const yw = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     yw[i] = y[i] * w(i);
-    for (let j = 0; j < k; j++) a.set(i, j, (design[i][j] * w(i)) / norms[j]);
+    for (let j = 0; j < k; j++) a[i * k + j] = (design[i][j] * w(i)) / norms[j];
   }
-  const svd = new SingularValueDecomposition(a);
+  const { r, qtb } = householderQR(a, n, k, yw);
+  const svd = new SingularValueDecomposition(new Matrix(r));
   const s = svd.diagonal;
   const u = svd.leftSingularVectors;
   const v = svd.rightSingularVectors;
@@ -96,10 +99,10 @@ export function fitLinearLeastSquares(
   if (s.some((si) => !(si > RANK_TOLERANCE * sMax))) {
     throw new RangeError("the design columns are linearly dependent over these points: the data cannot separate the coefficients");
   }
-  // b̃ = V S⁻¹ Uᵀ ỹ, then undo the column normalisation.
+  // R = U S Vᵀ, so b̃ = R⁻¹ Qᵀỹ = V S⁻¹ Uᵀ Qᵀỹ; then undo the column normalisation.
   const uty = s.map((_, c) => {
     let sum = 0;
-    for (let i = 0; i < n; i++) sum += u.get(i, c) * yw[i];
+    for (let i = 0; i < k; i++) sum += u.get(i, c) * qtb![i];
     return sum / s[c];
   });
   const params = new Array<number>(k);

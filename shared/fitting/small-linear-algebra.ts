@@ -41,3 +41,55 @@ export function choleskySolve(a: readonly (readonly number[])[], b: readonly num
   }
   return x;
 }
+
+/**
+ * Householder QR factorisation of a tall n×k matrix A (n ≥ k), returning R and, optionally, Qᵀb.
+ * O(n·k²) with no n×n or n×k output: the fitter only needs R (JᵀJ = RᵀR) and Qᵀb.
+ * @param a n×k matrix, row-major (a[i·k + j]); not modified
+ * @param n rows
+ * @param k columns
+ * @param b optional right-hand side of length n; not modified
+ * @returns r: the k×k upper-triangular factor; qtb: the first k entries of Qᵀb, and rss: Σ of the squares of
+ *   its remaining n − k entries (the residual sum of squares of the least-squares solution), when b is given
+ * @see Golub & Van Loan, Matrix Computations, 4th ed., Algorithm 5.2.1
+ */
+export function householderQR(
+  a: ArrayLike<number>,
+  n: number,
+  k: number,
+  b?: ArrayLike<number>,
+): { r: number[][]; qtb: number[] | null; rss: number | null } {
+  const w = Float64Array.from(a as ArrayLike<number>);
+  const v = b === undefined ? null : Float64Array.from(b as ArrayLike<number>);
+  for (let j = 0; j < k; j++) {
+    let norm = 0;
+    for (let i = j; i < n; i++) norm += w[i * k + j] * w[i * k + j];
+    norm = Math.sqrt(norm);
+    if (norm === 0) continue;
+    // Reflect column j onto −sign(a_jj)·‖a_j‖·e_j (the sign avoids cancellation in v = a − α e).
+    const alpha = w[j * k + j] > 0 ? -norm : norm;
+    const head = w[j * k + j] - alpha;
+    // Householder vector u = (head, a_{j+1..n−1, j}); τ = 2/‖u‖² = −1/(α·head).
+    const tau = -1 / (alpha * head);
+    for (let c = j + 1; c < k; c++) {
+      let dot = head * w[j * k + c];
+      for (let i = j + 1; i < n; i++) dot += w[i * k + j] * w[i * k + c];
+      dot *= tau;
+      w[j * k + c] -= dot * head;
+      for (let i = j + 1; i < n; i++) w[i * k + c] -= dot * w[i * k + j];
+    }
+    if (v !== null) {
+      let dot = head * v[j];
+      for (let i = j + 1; i < n; i++) dot += w[i * k + j] * v[i];
+      dot *= tau;
+      v[j] -= dot * head;
+      for (let i = j + 1; i < n; i++) v[i] -= dot * w[i * k + j];
+    }
+    w[j * k + j] = alpha;
+  }
+  const r = Array.from({ length: k }, (_, i) => Array.from({ length: k }, (__, j) => (j >= i ? w[i * k + j] : 0)));
+  if (v === null) return { r, qtb: null, rss: null };
+  let rss = 0;
+  for (let i = k; i < n; i++) rss += v[i] * v[i];
+  return { r, qtb: Array.from(v.subarray(0, k)), rss };
+}
