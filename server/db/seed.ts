@@ -2,6 +2,7 @@ import { randomUUID } from "node:crypto";
 import type { Role } from "@shared/schemas/auth";
 import { hashPassword } from "../services/users";
 import type { Db } from "./client";
+import { seedDemoRuns } from "./seed-demo-runs";
 import { labs, memberships, users } from "./schema";
 
 /*
@@ -54,7 +55,7 @@ export const seedLabAndPeople: SeedStep = {
 };
 
 /** Steps run in this order, in one transaction. Later issues append theirs (samples, runs, fits). */
-export const DEMO_SEED_STEPS: SeedStep[] = [seedLabAndPeople];
+export const DEMO_SEED_STEPS: SeedStep[] = [seedLabAndPeople, seedDemoRuns];
 
 /**
  * Seeds the demo lab into a database (call it only when there are no users yet; startServer checks).
