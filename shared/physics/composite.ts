@@ -13,20 +13,17 @@
  * Source: additivity of independent contributions to the heat capacity (common practice, no source);
  * the constraint is the count of 3n vibrational modes per formula unit.
  */
-import * as debye from "./debye";
-import * as einstein from "./einstein";
-import * as electronic from "./electronic";
-import * as nuclear from "./nuclear";
+import { GAS_CONSTANT } from "./constants";
+import { type DebyeDimension, debyeFunction, debyeValueAndSlope, params as debyeParams } from "./debye";
+import { einsteinFunction, einsteinValueAndSlope, params as einsteinParams } from "./einstein";
+import { params as electronicParams } from "./electronic";
+import { params as nuclearParams } from "./nuclear";
 import * as schottky from "./schottky";
-import * as t3 from "./t3";
-import * as t5 from "./t5";
+import { params as t3Params } from "./t3";
+import { params as t5Params } from "./t5";
 import type { CompositeModel, ComponentDefinition, ComponentKind, ModelDefinition, ParamSpec } from "./model-types";
 
-interface ComponentModule {
-  readonly params: readonly ParamSpec[];
-  evaluate(p: readonly number[], temperatureK: number): number;
-  jacobian(p: readonly number[], temperatureK: number): number[];
-}
+const R = GAS_CONSTANT;
 
 const LABELS: Record<ComponentKind, string> = {
   electronic: "Electronic",
@@ -38,41 +35,98 @@ const LABELS: Record<ComponentKind, string> = {
   nuclear: "Nuclear",
 };
 
-function moduleFor(c: ComponentDefinition): ComponentModule {
+const PARAMS: Record<ComponentKind, readonly ParamSpec[]> = {
+  electronic: electronicParams,
+  t3: t3Params,
+  t5: t5Params,
+  debye: debyeParams,
+  einstein: einsteinParams,
+  schottky: schottky.params,
+  nuclear: nuclearParams,
+};
+
+/**
+ * One component bound to its slots in the composite parameter vector. Each kind gets its own small
+ * closures that read p directly, so evaluation allocates nothing and the fitter's inner loop stays cheap;
+ * the formulas are those of the component files (tests compare the two).
+ */
+interface Term {
+  readonly label: string;
+  value(p: readonly number[], t: number): number;
+  /** Adds this term's ∂C/∂p into out. */
+  addGradient(p: readonly number[], t: number, out: number[]): void;
+}
+
+/** Composite-vector index of each of the component's parameters (−1: derived n_D). */
+function makeTerm(
+  c: ComponentDefinition,
+  label: string,
+  slots: readonly number[],
+  debyeCount: (p: readonly number[]) => number,
+  einsteinCountSlots: readonly number[],
+): Term {
+  const [i0, i1, i2] = slots;
   switch (c.kind) {
     case "electronic":
-      return electronic;
+      return { label, value: (p, t) => p[i0] * t, addGradient: (_p, t, out) => void (out[i0] += t) };
     case "t3":
-      return t3;
+      return { label, value: (p, t) => p[i0] * t * t * t, addGradient: (_p, t, out) => void (out[i0] += t * t * t) };
     case "t5":
-      return t5;
-    case "einstein":
-      return einstein;
-    case "schottky":
-      return schottky;
-    case "nuclear":
-      return nuclear;
-    case "debye": {
-      const d = c.dimension ?? 3;
-      if (d !== 1 && d !== 2 && d !== 3) throw new RangeError(`debye component: dimension must be 1, 2 or 3, got ${String(d)}`);
       return {
-        params: debye.params,
-        evaluate: (p, t) => debye.evaluate(p, t, d),
-        jacobian: (p, t) => debye.jacobian(p, t, d),
+        label,
+        value: (p, t) => p[i0] * t * t * t * t * t,
+        addGradient: (_p, t, out) => void (out[i0] += t * t * t * t * t),
+      };
+    case "nuclear":
+      return { label, value: (p, t) => p[i0] / (t * t), addGradient: (_p, t, out) => void (out[i0] += 1 / (t * t)) };
+    case "einstein":
+      return {
+        label,
+        value: (p, t) => 3 * p[i1] * R * einsteinFunction(p[i0] / t),
+        addGradient: (p, t, out) => {
+          const [e, slope] = einsteinValueAndSlope(p[i0] / t);
+          out[i0] += (3 * p[i1] * R * slope) / t;
+          out[i1] += 3 * R * e;
+        },
+      };
+    case "debye": {
+      const d = (c.dimension ?? 3) as DebyeDimension;
+      const derived = i1 < 0;
+      return {
+        label,
+        value: (p, t) => 3 * (derived ? debyeCount(p) : p[i1]) * R * debyeFunction(p[i0] / t, d),
+        addGradient: (p, t, out) => {
+          const [v, slope] = debyeValueAndSlope(p[i0] / t, d);
+          out[i0] += (3 * (derived ? debyeCount(p) : p[i1]) * R * slope) / t;
+          const dn = 3 * R * v;
+          if (!derived) out[i1] += dn;
+          // Derived n_D = n − Σ n_E: ∂C_D/∂n_E = −∂C_D/∂n_D for every Einstein count.
+          else for (const e of einsteinCountSlots) out[e] -= dn;
+        },
+      };
+    }
+    case "schottky": {
+      const scratch = [0, 0, 0];
+      const load = (p: readonly number[]) => {
+        scratch[0] = p[i0];
+        scratch[1] = p[i1];
+        scratch[2] = p[i2];
+        return scratch;
+      };
+      return {
+        label,
+        value: (p, t) => schottky.evaluate(load(p), t),
+        addGradient: (p, t, out) => {
+          const g = schottky.jacobian(load(p), t);
+          out[i0] += g[0];
+          out[i1] += g[1];
+          out[i2] += g[2];
+        },
       };
     }
     default:
       throw new RangeError(`unknown component kind "${String((c as { kind: unknown }).kind)}"`);
   }
-}
-
-interface Piece {
-  readonly label: string;
-  readonly module: ComponentModule;
-  /** For each of the module's parameters, its index in the composite vector, or −1 for the derived nD. */
-  readonly slots: readonly number[];
-  /** Parameter values handed to the module (reused between calls, so evaluation allocates nothing). */
-  readonly scratch: number[];
 }
 
 /**
@@ -93,23 +147,27 @@ export function buildComposite(def: ModelDefinition, atomsPerFormulaUnit: number
     throw new RangeError(`buildComposite: atomsPerFormulaUnit must be a positive number, got ${atomsPerFormulaUnit}`);
   }
   const constrain = def.constrainAtoms === true;
-  const debyeCount = def.components.filter((c) => c.kind === "debye").length;
-  if (constrain && debyeCount !== 1) {
-    throw new RangeError(`buildComposite: constrainAtoms needs exactly one Debye component, found ${debyeCount}`);
+  const debyeComponents = def.components.filter((c) => c.kind === "debye").length;
+  if (constrain && debyeComponents !== 1) {
+    throw new RangeError(`buildComposite: constrainAtoms needs exactly one Debye component, found ${debyeComponents}`);
   }
 
   const params: ParamSpec[] = [];
-  const pieces: Piece[] = [];
   const seen = new Map<ComponentKind, number>();
   const einsteinCountSlots: number[] = [];
-  let debyePiece = -1;
+  const layout: { c: ComponentDefinition; label: string; slots: number[] }[] = [];
   for (const c of def.components) {
-    const module = moduleFor(c);
+    const specs = PARAMS[c.kind as ComponentKind];
+    if (specs === undefined) throw new RangeError(`buildComposite: unknown component kind "${String(c.kind)}"`);
+    if (c.kind === "debye") {
+      const d = c.dimension ?? 3;
+      if (d !== 1 && d !== 2 && d !== 3) throw new RangeError(`buildComposite: Debye dimension must be 1, 2 or 3, got ${String(d)}`);
+    }
     const occurrence = (seen.get(c.kind) ?? 0) + 1;
     seen.set(c.kind, occurrence);
     const suffix = occurrence === 1 ? "" : String(occurrence);
     const slots: number[] = [];
-    for (const spec of module.params) {
+    for (const spec of specs) {
       if (constrain && c.kind === "debye" && spec.name === "nD") {
         slots.push(-1);
         continue;
@@ -118,14 +176,14 @@ export function buildComposite(def: ModelDefinition, atomsPerFormulaUnit: number
       params.push({ name: spec.name + suffix, unit: spec.unit, lower: spec.lower, upper: spec.upper });
       if (c.kind === "einstein" && spec.name === "nE") einsteinCountSlots.push(params.length - 1);
     }
-    if (c.kind === "debye") debyePiece = pieces.length;
-    pieces.push({
-      label: LABELS[c.kind] + (occurrence === 1 ? "" : ` ${occurrence}`),
-      module,
-      slots,
-      scratch: new Array<number>(slots.length).fill(0),
-    });
+    layout.push({ c, label: LABELS[c.kind] + (occurrence === 1 ? "" : ` ${occurrence}`), slots });
   }
+  const debyeCount = (p: readonly number[]): number => {
+    let nE = 0;
+    for (const e of einsteinCountSlots) nE += p[e];
+    return atomsPerFormulaUnit - nE;
+  };
+  const terms = layout.map(({ c, label, slots }) => makeTerm(c, label, slots, debyeCount, einsteinCountSlots));
 
   const index = new Map(params.map((p, i) => [p.name, i] as const));
   for (const [name, setting] of Object.entries(def.parameters ?? {})) {
@@ -144,46 +202,24 @@ export function buildComposite(def: ModelDefinition, atomsPerFormulaUnit: number
       throw new RangeError(`composite model: expected ${nParams} parameters (${params.map((q) => q.name).join(", ")}), got ${p.length}`);
     }
   };
-  const load = (piece: Piece, p: readonly number[]): readonly number[] => {
-    const { slots, scratch } = piece;
-    for (let i = 0; i < slots.length; i++) {
-      const s = slots[i];
-      if (s >= 0) scratch[i] = p[s];
-      else {
-        let nE = 0;
-        for (const e of einsteinCountSlots) nE += p[e];
-        scratch[i] = atomsPerFormulaUnit - nE;
-      }
-    }
-    return scratch;
-  };
 
   const evaluate = (p: readonly number[], temperatureK: number): number => {
     checkLength(p);
     let sum = 0;
-    for (const piece of pieces) sum += piece.module.evaluate(load(piece, p), temperatureK);
+    for (let k = 0; k < terms.length; k++) sum += terms[k].value(p, temperatureK);
     return sum;
   };
 
   const jacobian = (p: readonly number[], temperatureK: number): number[] => {
     checkLength(p);
     const out = new Array<number>(nParams).fill(0);
-    for (let k = 0; k < pieces.length; k++) {
-      const piece = pieces[k];
-      const j = piece.module.jacobian(load(piece, p), temperatureK);
-      for (let i = 0; i < piece.slots.length; i++) {
-        const s = piece.slots[i];
-        if (s >= 0) out[s] += j[i];
-        // Derived n_D = n − Σ n_E: ∂C_D/∂n_E = −∂C_D/∂n_D for every Einstein count.
-        else if (k === debyePiece) for (const e of einsteinCountSlots) out[e] -= j[i];
-      }
-    }
+    for (let k = 0; k < terms.length; k++) terms[k].addGradient(p, temperatureK, out);
     return out;
   };
 
   const parts = (p: readonly number[], temperatureK: number): { label: string; value: number }[] => {
     checkLength(p);
-    return pieces.map((piece) => ({ label: piece.label, value: piece.module.evaluate(load(piece, p), temperatureK) }));
+    return terms.map((term) => ({ label: term.label, value: term.value(p, temperatureK) }));
   };
 
   return {

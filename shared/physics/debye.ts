@@ -130,13 +130,30 @@ export function debyeFunction(x: number, dimension: DebyeDimension = 3): number 
  */
 export function debyeFunctionDerivative(x: number, dimension: DebyeDimension = 3): number {
   if (!(x >= 0) || !isDimension(dimension)) return Number.NaN;
+  return derivativeGivenValue(x, dimension, x <= X_MAX ? 0 : debyeFunction(x, dimension));
+}
+
+/** D_d'(x) for valid x ≥ 0 and d; `value` must be D_d(x) when x > X_MAX (unused below). */
+function derivativeGivenValue(x: number, d: DebyeDimension, value: number): number {
   if (x === 0) return 0;
   if (x <= X_MAX) {
     const r = x / X_MAX;
-    return x * chebyshevSum(DEBYE_DERIVATIVE_CHEBYSHEV[dimension - 1], 2 * r * r - 1);
+    return x * chebyshevSum(DEBYE_DERIVATIVE_CHEBYSHEV[d - 1], 2 * r * r - 1);
   }
   if (x === Number.POSITIVE_INFINITY) return 0;
-  return (dimension / x) * (einsteinFunction(x) - debyeFunction(x, dimension));
+  return (d / x) * (einsteinFunction(x) - value);
+}
+
+/**
+ * D_d(x) and dD_d/dx together, sharing one evaluation of D_d (for jacobians).
+ * @param x θ_D/T (dimensionless)
+ * @param dimension lattice dimension d: 1, 2 or 3
+ * @returns [D_d(x), dD_d/dx], each as debyeFunction and debyeFunctionDerivative give them
+ */
+export function debyeValueAndSlope(x: number, dimension: DebyeDimension = 3): [number, number] {
+  if (!(x >= 0) || !isDimension(dimension)) return [Number.NaN, Number.NaN];
+  const value = debyeFunction(x, dimension);
+  return [value, derivativeGivenValue(x, dimension, value)];
 }
 
 /**
@@ -184,9 +201,6 @@ export function evaluate(p: readonly number[], temperatureK: number, dimension: 
  * @returns [J/(mol·K²), J/(mol·K)]
  */
 export function jacobian(p: readonly number[], temperatureK: number, dimension: DebyeDimension = 3): number[] {
-  const x = p[0] / temperatureK;
-  return [
-    (3 * p[1] * GAS_CONSTANT * debyeFunctionDerivative(x, dimension)) / temperatureK,
-    3 * GAS_CONSTANT * debyeFunction(x, dimension),
-  ];
+  const [value, slope] = debyeValueAndSlope(p[0] / temperatureK, dimension);
+  return [(3 * p[1] * GAS_CONSTANT * slope) / temperatureK, 3 * GAS_CONSTANT * value];
 }

@@ -45,8 +45,23 @@ const DERIVATIVE_SERIES_X_MAX = 1;
  */
 export function einsteinFunctionDerivative(x: number): number {
   if (!(x >= 0)) return Number.NaN;
-  if (x === 0 || x === Number.POSITIVE_INFINITY) return 0;
+  return derivativeGivenValue(x, einsteinFunction(x));
+}
+
+/**
+ * E(x) and dE/dx together, sharing one evaluation of E (for jacobians).
+ * @param x θ_E/T (dimensionless)
+ * @returns [E(x), dE/dx], each as einsteinFunction and einsteinFunctionDerivative give them
+ */
+export function einsteinValueAndSlope(x: number): [number, number] {
+  if (!(x >= 0)) return [Number.NaN, Number.NaN];
   const e = einsteinFunction(x);
+  return [e, derivativeGivenValue(x, e)];
+}
+
+/** dE/dx for x ≥ 0 given e = E(x). */
+function derivativeGivenValue(x: number, e: number): number {
+  if (x === 0 || x === Number.POSITIVE_INFINITY) return 0;
   if (x < DERIVATIVE_SERIES_X_MAX) {
     // Σ_k B_2k x^{2k−1}/(2k)!, 12 terms: the (k+1)th term is below 1e-19 of the first for x < 1.
     const x2 = x * x;
@@ -82,9 +97,6 @@ export function evaluate(p: readonly number[], temperatureK: number): number {
  * @returns [J/(mol·K²), J/(mol·K)]
  */
 export function jacobian(p: readonly number[], temperatureK: number): number[] {
-  const x = p[0] / temperatureK;
-  return [
-    (3 * p[1] * GAS_CONSTANT * einsteinFunctionDerivative(x)) / temperatureK,
-    3 * GAS_CONSTANT * einsteinFunction(x),
-  ];
+  const [value, slope] = einsteinValueAndSlope(p[0] / temperatureK);
+  return [(3 * p[1] * GAS_CONSTANT * slope) / temperatureK, 3 * GAS_CONSTANT * value];
 }
