@@ -1,10 +1,12 @@
 import { Router } from "express";
 import {
   CreateFitBody,
+  FitChoiceQuery,
   FitParams,
   PreviewFitBody,
   RankBody,
   RunParams,
+  ThermoQuery,
   type RankStreamLine,
 } from "@shared/schemas/fits";
 import type { AppContext } from "../context";
@@ -17,6 +19,9 @@ import {
   listRunFits,
   previewFit,
   rankRunModels,
+  runThermoTable,
+  runThetaDCurve,
+  thermoTableCsv,
 } from "../services/fits";
 
 /**
@@ -74,6 +79,27 @@ export function fitsRouter(ctx: AppContext): Router {
       write({ type: "error", error: { code: e.code, message: e.message } });
       res.end();
     }
+  });
+
+  router.get("/labs/:labId/runs/:runId/theta-d", guard.read, (req, res) => {
+    const params = RunParams.parse(req.params);
+    const query = FitChoiceQuery.parse(req.query);
+    res.json(runThetaDCurve(ctx.db, params, query.fitId));
+  });
+
+  router.get("/labs/:labId/runs/:runId/thermo", guard.read, (req, res) => {
+    const params = RunParams.parse(req.params);
+    const query = ThermoQuery.parse(req.query);
+    res.json(runThermoTable(ctx.db, params, query.fitId, query.at));
+  });
+
+  router.get("/labs/:labId/runs/:runId/thermo.csv", guard.read, (req, res) => {
+    const params = RunParams.parse(req.params);
+    const query = ThermoQuery.parse(req.query);
+    const { fileName, text } = thermoTableCsv(ctx.db, params, query.fitId, query.at);
+    res.type("text/csv; charset=utf-8");
+    res.setHeader("Content-Disposition", `attachment; filename="${fileName}"`);
+    res.send(text);
   });
 
   router.get("/labs/:labId/fits/:fitId", guard.read, (req, res) => {

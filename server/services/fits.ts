@@ -19,6 +19,8 @@ import {
   type ModelDefinitionInput,
   type PersonRef,
   type RunParams,
+  type ThermoTable,
+  type ThetaDCurve,
 } from "@shared/schemas/fits";
 import type { Db } from "../db/client";
 import { fitParameters, fits, runPoints, runs, samples, users } from "../db/schema";
@@ -27,6 +29,9 @@ import { audit } from "./audit";
 import { buildComposite } from "@shared/physics/composite";
 import type { CompositeModel } from "@shared/physics/model-types";
 import { fitHeatCapacity, type HeatCapacityFit } from "@shared/fitting/fit-model";
+import { thermoTable } from "@shared/physics/thermo";
+import { thetaDFromBeta, thetaDFromPoint } from "@shared/physics/theta-d";
+import { monotoneInterpolator } from "@shared/numerics/monotone-interpolation";
 
 /** The version stored with every fit: package.json "version" of this build. */
 export const SOFTWARE_VERSION: string = (
@@ -746,4 +751,148 @@ export async function rankRunModels(
 export function modelLabel(def: ModelDefinitionInput): string {
   const words: Record<string, string> = { electronic: "γT", t3: "βT³", t5: "δT⁵", einstein: "Einstein", schottky: "Schottky", nuclear: "nuclear A/T²" };
   return def.components.map((c) => (c.kind === "debye" ? (c.dimension && c.dimension !== 3 ? `Debye ${c.dimension}D` : "Debye") : words[c.kind])).join(" + ");
+}
+
+/* ------------------------------------------------------------------------------------------------
+ * θ_D(T) and the thermodynamic functions of a run, against one of its fits
+ * ---------------------------------------------------------------------------------------------- */
+
+/** The fit asked for, else the run's approved fit, else its newest. */
+function chooseFit(db: Db, params: RunParams, fitId?: string): Fit {
+  const run = db.select({ id: runs.id }).from(runs).where(and(eq(runs.id, params.runId), eq(runs.labId, params.labId))).get();
+  if (!run) throw notFound("No such run in this lab");
+  let row: FitRow | undefined;
+  if (fitId) {
+    row = db.select().from(fits).where(and(eq(fits.id, fitId), eq(fits.runId, params.runId), eq(fits.labId, params.labId))).get();
+    if (!row) throw notFound("No such fit of this run");
+  } else {
+    row =
+      db.select().from(fits).where(and(eq(fits.runId, params.runId), eq(fits.state, "approved"))).get() ??
+      db.select().from(fits).where(eq(fits.runId, params.runId)).orderBy(desc(fits.createdAt), desc(sql`rowid`)).limit(1).get();
+    if (!row) throw unprocessable("This run has no saved fit yet. Fit a model and save it first: below the data and for the electronic part the fitted model is needed.");
+  }
+  return getFit(db, { labId: params.labId, fitId: row.id });
+}
+
+/** The fitted composite of a stored fit and its parameter vector. */
+function fittedModel(fit: Fit): { model: CompositeModel; values: number[] } {
+  const model = buildComposite(fit.model, fit.atomsPerFormulaUnit);
+  const values = model.params.map((spec) => fit.parameters.find((p) => p.name === spec.name)?.value ?? Number.NaN);
+  return { model, values };
+}
+
+/** Components that are not lattice vibrations: taken off the data before the θ_D inversion. */
+const NON_LATTICE = new Set(["electronic", "schottky", "nuclear"]);
+
+const NO_SOLUTION_WORDS = {
+  "above-limit": "the lattice part is at or above the Dulong–Petit limit 3nR",
+  "not-positive": "the lattice part is zero or negative after the subtraction",
+} as const;
+
+/**
+ * θ_D(T) of a run: for each point, the Debye temperature that alone reproduces its lattice part, the
+ * data minus the fitted electronic term (and any fitted Schottky and nuclear terms), by H1's
+ * thetaDFromPoint; plus the fit's own θ_D (its Debye term, or from β of a T³ term).
+ * @param db the database
+ * @param params lab and run
+ * @param fitId the fit to use; default the approved fit, else the newest
+ * @returns one entry per point of the run (masked points flagged), null θ_D with the reason where there is none
+ * @throws HttpError 404 unknown run or fit; 422 when the run has no fit
+ * @see shared/physics/theta-d.ts
+ */
+export function runThetaDCurve(db: Db, params: RunParams, fitId?: string): ThetaDCurve {
+  const fit = chooseFit(db, params, fitId);
+  const run = loadRunForFit(db, params.labId, params.runId);
+  const { model, values } = fittedModel(fit);
+  const n = fit.atomsPerFormulaUnit;
+  const kinds = fit.model.components.map((c) => c.kind);
+  const debyes = fit.model.components.filter((c) => c.kind === "debye");
+  const dimension = debyes.length === 1 && debyes[0].kind === "debye" ? (debyes[0].dimension ?? 3) : 3;
+  const subtracted = [...new Set(kinds.filter((k) => NON_LATTICE.has(k)))];
+  const points: ThetaDPointOut[] = run.points.map((p) => {
+    const parts = model.parts(values, p.temperatureK);
+    let lattice = p.cp;
+    parts.forEach((part, i) => {
+      if (NON_LATTICE.has(kinds[i])) lattice -= part.value;
+    });
+    const r = thetaDFromPoint(lattice, p.temperatureK, n, dimension);
+    return {
+      temperatureK: p.temperatureK,
+      lattice,
+      thetaD: r.thetaD,
+      noSolution: r.thetaD === null ? NO_SOLUTION_WORDS[r.reason] : null,
+      masked: p.masked,
+    };
+  });
+  let fittedThetaD: ThetaDCurve["fittedThetaD"] = null;
+  const theta = fit.parameters.find((p) => p.name === "thetaD");
+  const beta = fit.parameters.find((p) => p.name === "beta");
+  if (theta) fittedThetaD = { value: theta.value, stderr: theta.stderr, source: "the Debye term of the fit" };
+  else if (beta && beta.value > 0) {
+    const value = thetaDFromBeta(beta.value, n);
+    // θ ∝ β^(−1/3): σ_θ/θ = σ_β/(3β).
+    fittedThetaD = { value, stderr: beta.stderr === null ? null : (value * beta.stderr) / (3 * beta.value), source: "β of the T³ term, θ_D = (12π⁴nR/5β)^(1/3)" };
+  }
+  return { fitId: fit.id, atomsPerFormulaUnit: n, subtracted, fittedThetaD, points };
+}
+
+type ThetaDPointOut = ThetaDCurve["points"][number];
+
+/**
+ * S(T) = ∫₀ᵀ C/T dT and H(T) − H(0) = ∫₀ᵀ C dT of a run: the unmasked data (monotone interpolation)
+ * from its first point up, the fitted model of the chosen fit below it (H1's thermoTable).
+ * @param db the database
+ * @param params lab and run
+ * @param fitId the fit for the part below the data; default the approved fit, else the newest
+ * @param at temperatures in K (≤ the last data point); default round temperatures and 298.15 K within the data
+ * @returns the table
+ * @throws HttpError 404 unknown run or fit; 422 no fit, a temperature above the data, or a model whose entropy diverges at 0 K
+ * @see shared/physics/thermo.ts
+ */
+export function runThermoTable(db: Db, params: RunParams, fitId?: string, at?: number[]): ThermoTable {
+  const fit = chooseFit(db, params, fitId);
+  const run = loadRunForFit(db, params.labId, params.runId);
+  const data = run.points.filter((p) => !p.masked);
+  if (data.length < 2) throw unprocessable("The run has fewer than two unmasked points to integrate");
+  const ts = data.map((p) => p.temperatureK);
+  const cs = data.map((p) => p.cp);
+  const first = ts[0];
+  const last = ts[ts.length - 1];
+  const above = at?.find((t) => t > last);
+  if (above !== undefined) throw unprocessable(`${above} K is above the last data point (${last} K); the data are not extrapolated upwards`);
+  const { model, values } = fittedModel(fit);
+  const lowT = (T: number) => model.evaluate(values, T);
+  let rows: { T: number; S: number; H: number }[];
+  try {
+    rows = thermoTable(ts, cs, lowT, at ? [...at].sort((a, b) => a - b) : undefined);
+  } catch (err) {
+    if (err instanceof RangeError) {
+      throw unprocessable(
+        `The entropy cannot be integrated with this fit below ${first} K: ${err.message}. A nuclear A/T² tail makes C/T diverge at 0 K; choose a fit without it.`,
+      );
+    }
+    throw err;
+  }
+  const interp = monotoneInterpolator(ts, cs);
+  const below = thermoTable(ts, cs, lowT, [first])[0];
+  const reference = rows.find((r) => r.T === 298.15) ?? rows[rows.length - 1];
+  return {
+    fitId: fit.id,
+    dataStartK: first,
+    dataEndK: last,
+    modelShareOfEntropy: reference && reference.S > 0 ? below.S / reference.S : 0,
+    rows: rows.map((r) => ({ temperatureK: r.T, cp: r.T >= first ? interp(r.T) : lowT(r.T), entropy: r.S, enthalpy: r.H })),
+  };
+}
+
+/**
+ * The thermodynamic table as CSV: T_K, Cp, S, H − H(0) in SI, one row per temperature.
+ * @returns the file name and text
+ * @throws as runThermoTable
+ */
+export function thermoTableCsv(db: Db, params: RunParams, fitId?: string, at?: number[]): { fileName: string; text: string } {
+  const table = runThermoTable(db, params, fitId, at);
+  const lines = ["T_K,Cp_J_per_mol_K,S_J_per_mol_K,H_minus_H0_J_per_mol"];
+  for (const r of table.rows) lines.push([r.temperatureK, r.cp, r.entropy, r.enthalpy].map((v) => String(Number(v.toPrecision(10)))).join(","));
+  return { fileName: `thermo-${params.runId.slice(0, 8)}-fit-${table.fitId.slice(0, 8)}.csv`, text: `${lines.join("\n")}\n` };
 }
