@@ -4,6 +4,7 @@ import {
   debyeFunction,
   debyeFunctionDerivative,
   debyeLowTLimit,
+  debyeValueAndSlope,
   evaluate,
   jacobian,
   params,
@@ -160,6 +161,17 @@ describe("debyeFunction special values", () => {
     }
     // 3·Γ(5)ζ(4)/x³ at x = 1e102 is 7.79e-305, still a normal double although x³ overflows.
     expectClose(debyeFunction(1e102, 3), (3 * 24 * (Math.PI ** 4 / 90)) / 1e306, { rel: 1e-14 });
+  });
+});
+
+describe("debyeValueAndSlope", () => {
+  it("returns exactly debyeFunction and debyeFunctionDerivative, on both branches and at the special values", () => {
+    for (const d of DIMENSIONS) {
+      for (const x of [0, 1e-3, 2, 4, 4.5, 30, 800, Number.POSITIVE_INFINITY]) {
+        expect(debyeValueAndSlope(x, d)).toEqual([debyeFunction(x, d), debyeFunctionDerivative(x, d)]);
+      }
+      expect(debyeValueAndSlope(-1, d).every(Number.isNaN)).toBe(true);
+    }
   });
 });
 

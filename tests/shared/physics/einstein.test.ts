@@ -3,6 +3,7 @@ import { describe, expect, it } from "vitest";
 import {
   einsteinFunction,
   einsteinFunctionDerivative,
+  einsteinValueAndSlope,
   evaluate,
   jacobian,
   params,
@@ -103,6 +104,15 @@ describe("einsteinFunction special values", () => {
     }
     expect(einsteinFunction(1e-300)).toBe(1);
     expect(einsteinFunction(1e300)).toBe(0);
+  });
+});
+
+describe("einsteinValueAndSlope", () => {
+  it("returns exactly einsteinFunction and einsteinFunctionDerivative, including special values", () => {
+    for (const x of [0, 1e-4, 0.999, 1, 7, 650, 2000, Number.POSITIVE_INFINITY]) {
+      expect(einsteinValueAndSlope(x)).toEqual([einsteinFunction(x), einsteinFunctionDerivative(x)]);
+    }
+    expect(einsteinValueAndSlope(Number.NaN).every(Number.isNaN)).toBe(true);
   });
 });
 
