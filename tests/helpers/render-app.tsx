@@ -6,8 +6,8 @@ import type { Member } from "@shared/schemas/labs";
 import { Providers } from "@/app/providers";
 import { appRoutes } from "@/app/router";
 
-// The first visit to each page imports its lazy route module (transformed on demand): allow more than 1 s.
-configure({ asyncUtilTimeout: 5_000 });
+// The first visit to each page imports its lazy route module (transformed on demand): allow more than 1 s (the machine is shared and can be slow).
+configure({ asyncUtilTimeout: 10_000 });
 
 /** A QueryClient for one test: no retries (a stubbed failure shows at once), nothing shared between tests. */
 export function testQueryClient(): QueryClient {

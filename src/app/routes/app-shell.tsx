@@ -58,7 +58,8 @@ export function Component() {
   const signOut = useSignOut();
   useSessionWatch();
 
-  if (!me) return <Navigate to={signInPath(location)} replace />;
+  // Signed out here: plain sign-in page. Session ended elsewhere: sign-in, then back to this page.
+  if (!me) return <Navigate to={signOut.isPending || signOut.isSuccess ? "/sign-in" : signInPath(location)} replace />;
 
   const labId = params.labId ?? pickLab(me, readLastLab());
   const sections = labId
@@ -104,7 +105,7 @@ export function Component() {
               user={me.user}
               showOutbox={me.user.isSiteAdmin && fakeMail}
               signingOut={signOut.isPending}
-              onSignOut={() => signOut.mutate(undefined, { onSuccess: () => navigate("/sign-in", { replace: true }) })}
+              onSignOut={() => signOut.mutate()}
             />
           </div>
         </div>

@@ -20,7 +20,8 @@ export function AuditLog({ entries }: { entries: AuditEntry[] }) {
   }
   const sorted = [...entries].sort((a, b) => b.createdAt.localeCompare(a.createdAt));
   return (
-    <div className="max-h-96 overflow-auto">
+    // Focusable so the scrolled list can be read with the arrow keys (WCAG 2.1.1).
+    <div className="max-h-96 overflow-auto" tabIndex={0} role="region" aria-label="Audit log entries">
       <table className="w-full text-left text-sm">
         <caption className="sr-only">Audit log of this lab</caption>
         <thead className="sticky top-0 bg-sunken text-xs tracking-wide text-ink-muted uppercase">
