@@ -157,7 +157,7 @@ export function buildComposite(def: ModelDefinition, atomsPerFormulaUnit: number
   const einsteinCountSlots: number[] = [];
   const layout: { c: ComponentDefinition; label: string; slots: number[] }[] = [];
   for (const c of def.components) {
-    const specs = PARAMS[c.kind as ComponentKind];
+    const specs = Object.hasOwn(PARAMS, c.kind) ? PARAMS[c.kind] : undefined;
     if (specs === undefined) throw new RangeError(`buildComposite: unknown component kind "${String(c.kind)}"`);
     if (c.kind === "debye") {
       const d = c.dimension ?? 3;

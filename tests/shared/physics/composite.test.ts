@@ -122,6 +122,7 @@ describe("buildComposite: refusals", () => {
 
   it("throws RangeError for unknown kinds, dimensions and parameter settings, and for lower > upper", () => {
     expect(() => buildComposite({ components: [{ kind: "phonon" } as never] }, 1)).toThrow(RangeError);
+    expect(() => buildComposite({ components: [{ kind: "toString" } as never] }, 1)).toThrow(/unknown component kind/);
     expect(() => buildComposite({ components: [{ kind: "debye", dimension: 4 as never }] }, 1)).toThrow(RangeError);
     expect(() => buildComposite({ components: [{ kind: "debye" }], parameters: { thetaE: { value: 100 } } }, 1)).toThrow(
       /unknown parameter "thetaE"/,
