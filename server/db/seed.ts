@@ -3,6 +3,7 @@ import type { Role } from "@shared/schemas/auth";
 import { hashPassword } from "../services/users";
 import type { Db } from "./client";
 import { seedDemoRuns } from "./seed-demo-runs";
+import { seedDemoFits } from "./seed-demo-fits";
 import { labs, memberships, users } from "./schema";
 
 /*
@@ -55,7 +56,7 @@ export const seedLabAndPeople: SeedStep = {
 };
 
 /** Steps run in this order, in one transaction. Later issues append theirs (samples, runs, fits). */
-export const DEMO_SEED_STEPS: SeedStep[] = [seedLabAndPeople, seedDemoRuns];
+export const DEMO_SEED_STEPS: SeedStep[] = [seedLabAndPeople, seedDemoRuns, seedDemoFits];
 
 /**
  * Seeds the demo lab into a database (call it only when there are no users yet; startServer checks).
