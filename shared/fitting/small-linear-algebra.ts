@@ -93,3 +93,27 @@ export function householderQR(
   for (let i = k; i < n; i++) rss += v[i] * v[i];
   return { r, qtb: Array.from(v.subarray(0, k)), rss };
 }
+
+/**
+ * Least-squares solution of A·x ≈ b by Householder QR and back substitution, without covariance: for
+ * cheap screening solves. Columns should be scaled to comparable norms by the caller.
+ * @param a n×k matrix, row-major; not modified
+ * @param n rows (≥ k)
+ * @param k columns
+ * @param b right-hand side of length n; not modified
+ * @returns x, or null when a diagonal entry of R is below 1e-12 of the largest (dependent columns)
+ */
+export function leastSquaresSolve(a: ArrayLike<number>, n: number, k: number, b: ArrayLike<number>): number[] | null {
+  if (n < k) return null;
+  const { r, qtb } = householderQR(a, n, k, b);
+  const largest = Math.max(...r.map((row, i) => Math.abs(row[i])));
+  if (!(largest > 0)) return null;
+  const x = new Array<number>(k);
+  for (let i = k - 1; i >= 0; i--) {
+    if (!(Math.abs(r[i][i]) > 1e-12 * largest)) return null;
+    let sum = qtb![i];
+    for (let j = i + 1; j < k; j++) sum -= r[i][j] * x[j];
+    x[i] = sum / r[i][i];
+  }
+  return x;
+}
