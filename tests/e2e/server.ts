@@ -27,10 +27,10 @@ export interface E2eServer {
 }
 
 /**
- * The real server, in this process: a fresh temporary DATA_DIR seeded with the demo lab, the built-in fake SMTP
+ * The real server, in this process: a fresh temporary DATA_DIR (seeded with the demo lab unless `seed: "none"`), the built-in fake SMTP
  * server, and the client built by vite when dist/ is missing or older than its sources.
  */
-export async function startE2eServer(): Promise<E2eServer> {
+export async function startE2eServer(options: { seed?: "demo" | "none" } = {}): Promise<E2eServer> {
   const dataDir = mkdtempSync(path.join(tmpdir(), "thetafold-e2e-"));
   const demoPassword = process.env.DEMO_PASSWORD ?? "e2e-demo-password-2026";
   const port = await freePort();
@@ -41,7 +41,7 @@ export async function startE2eServer(): Promise<E2eServer> {
     PORT: String(port),
     PUBLIC_URL: `http://127.0.0.1:${port}`,
     DATA_DIR: dataDir,
-    SEED: "demo",
+    SEED: options.seed ?? "demo",
     DEMO_PASSWORD: demoPassword,
   };
   delete source.SMTP_URL; // always the built-in fake SMTP server: the stories read its outbox
