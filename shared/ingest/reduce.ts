@@ -7,6 +7,7 @@
  */
 import type { ImportMapping, IngestWarning, ReducedPoint, ReducedRun } from "@shared/schemas/ingest";
 import { monotoneInterpolator } from "@shared/numerics/monotone-interpolation";
+import { GAS_CONSTANT } from "@shared/physics/constants";
 import { IngestError, type IngestIssue } from "./ingest-error";
 import type { DelimitedTable } from "./read-delimited";
 import {
@@ -18,9 +19,8 @@ import {
   type MolarBasis,
 } from "./units";
 
-// CODATA 2018: R = N_A·k_B = 6.02214076e23 mol⁻¹ × 1.380649e-23 J/K (both exact), rounded to 10 digits
-// as CODATA quotes it.
-export const GAS_CONSTANT = 8.314462618;
+// R = N_A·k_B (CODATA 2018, both exact), the physics core's constant, re-exported for callers of the reduction.
+export { GAS_CONSTANT };
 
 /** Rows within this many tesla of a run's first (lowest) field belong to that run. */
 export const DEFAULT_FIELD_TOLERANCE_T = 0.05;
