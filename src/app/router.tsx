@@ -51,6 +51,8 @@ export function appRoutes(queryClient: QueryClient): RouteObject[] {
               children: [
                 { index: true, loader: ({ params }) => redirect(`/labs/${params.labId}/samples`) },
                 { path: "samples", lazy: lazy(() => import("./routes/samples")) },
+                { path: "samples/:sampleId", lazy: lazy(() => import("./routes/sample")) },
+                { path: "runs/:runId", lazy: lazy(() => import("./routes/run")) },
                 { path: "compare", lazy: lazy(() => import("./routes/compare")) },
                 { path: "bundles", lazy: lazy(() => import("./routes/bundles")) },
                 { path: "lab", lazy: lazy(() => import("./routes/lab")) },
