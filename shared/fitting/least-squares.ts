@@ -267,8 +267,10 @@ export function fitLeastSquares(
   };
 
   /** ∂f/∂q_j (unwhitened) at x for the free parameters, analytic or by central differences. */
-  const gradientAt = (full: readonly number[]): ((xi: number) => number[]) => {
+  const gradientAt = (full: readonly number[]): ((xi: number) => ArrayLike<number>) => {
     if (jacobian !== undefined) {
+      // With nothing fixed the model's own array is already in the right order (only ever read).
+      if (k === p) return (xi) => jacobian(full, xi);
       return (xi) => {
         const g = jacobian(full, xi);
         const out = new Array<number>(k);
@@ -403,8 +405,9 @@ export function fitLeastSquares(
     const grad = gradientAt(full);
     return (i: number) => {
       const g = grad(x[i]);
-      for (let j = 0; j < k; j++) g[j] *= invSigma[i] / scale[j];
-      return g;
+      const out = new Array<number>(k);
+      for (let j = 0; j < k; j++) out[j] = (g[j] * invSigma[i]) / scale[j];
+      return out;
     };
   };
 
@@ -551,16 +554,21 @@ function normalEquations(
   n: number,
   k: number,
 ): NormalEquations {
-  const a: number[][] = Array.from({ length: k }, () => new Array<number>(k).fill(0));
-  const g = new Array<number>(k).fill(0);
+  // Accumulate JᵀJ (lower triangle) and Jᵀr in flat typed arrays: this loop runs over every point.
+  const flat = new Float64Array(k * k);
+  const gFlat = new Float64Array(k);
   for (let i = 0; i < n; i++) {
     const row = i * k;
+    const ri = r[i];
     for (let j = 0; j < k; j++) {
       const jj = jac[row + j];
-      g[j] += jj * r[i];
-      for (let m = 0; m <= j; m++) a[j][m] += jj * jac[row + m];
+      gFlat[j] += jj * ri;
+      const base = j * k;
+      for (let m = 0; m <= j; m++) flat[base + m] += jj * jac[row + m];
     }
   }
+  const a: number[][] = Array.from({ length: k }, (_, j) => Array.from(flat.subarray(j * k, j * k + k)));
+  const g = Array.from(gFlat);
   // χ² decreases when q_j moves along g_j; a parameter on a bound with g pointing outwards stays put.
   const active: number[] = [];
   for (let j = 0; j < k; j++) {
