@@ -13,11 +13,11 @@ export function FitWarnings({ warnings, converged, stopReason }: { warnings: rea
   return (
     <Alert tone="caution" title={converged ? "Read these before you save" : "This fit did not converge"} role="status">
       <ul className="list-disc space-y-1 pl-4">
-        {!converged && !warnings.some((w) => w.code === "not-converged" || w.code === "not_converged") ? (
+        {!converged && !warnings.some((w) => w.includes("did not converge")) ? (
           <li>The fitter stopped without converging: {stopReason}. Try other start values, a narrower window or fewer free parameters.</li>
         ) : null}
         {warnings.map((w, i) => (
-          <li key={`${w.code}-${i}`}>{w.message}</li>
+          <li key={i}>{w}</li>
         ))}
       </ul>
     </Alert>

@@ -304,11 +304,11 @@ export function FitWorkspace({ labId, run, canWrite, canApprove }: FitWorkspaceP
               onUseSuggested={
                 suggested
                   ? () => {
-                      let next = definition;
+                      const parameters = { ...(definition.parameters ?? {}) };
                       for (const [name, v] of Object.entries(suggested)) {
-                        if (!next.parameters?.[name]?.fixed) next = { ...next, parameters: { ...next.parameters, [name]: { ...next.parameters?.[name], value: v } } };
+                        if (!parameters[name]?.fixed) parameters[name] = { ...parameters[name], value: Number(v.toPrecision(6)) };
                       }
-                      setDefinition(next);
+                      setDefinition({ ...definition, parameters });
                     }
                   : undefined
               }

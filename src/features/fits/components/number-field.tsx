@@ -39,8 +39,10 @@ export function NumberField({ label, hideLabel, value, placeholder, onCommit, st
   const clamp = (v: number) => Math.min(max ?? Infinity, Math.max(min ?? -Infinity, v));
 
   return (
-    <label htmlFor={id} className={`flex items-center gap-1 ${className ?? ""}`}>
-      <span className={hideLabel ? "sr-only" : "text-xs text-ink-muted"}>{label}</span>
+    <span className={`flex items-center gap-1 ${className ?? ""}`}>
+      <label htmlFor={id} className={hideLabel ? "sr-only" : "text-xs text-ink-muted"}>
+        {label}
+      </label>
       <input
         id={id}
         type="text"
@@ -71,6 +73,6 @@ export function NumberField({ label, hideLabel, value, placeholder, onCommit, st
         }`}
       />
       {unit ? <span className="text-xs text-ink-muted">{unit}</span> : null}
-    </label>
+    </span>
   );
 }
