@@ -28,7 +28,7 @@ export function MembersTable({ labId, members, canManage, currentUserId, onChang
             <th scope="col" className="px-5 py-2 font-medium">
               Person
             </th>
-            <th scope="col" className="px-3 py-2 font-medium">
+            <th scope="col" className="hidden px-3 py-2 font-medium sm:table-cell">
               Joined
             </th>
             <th scope="col" className="px-3 py-2 font-medium">
@@ -98,7 +98,7 @@ function MemberRow({
           </div>
           <div className="text-xs text-ink-muted">{member.email}</div>
         </td>
-        <td className="px-3 py-3 whitespace-nowrap text-ink-muted">{formatDate(member.joinedAt)}</td>
+        <td className="hidden px-3 py-3 whitespace-nowrap text-ink-muted sm:table-cell">{formatDate(member.joinedAt)}</td>
         <td className="px-3 py-3">
           {canManage ? (
             <div className="flex items-center gap-2">
