@@ -13,6 +13,7 @@ import { readEnv, type Env } from "./env";
 import { createMailer } from "./mail/mailer";
 import { countUsers } from "./services/users";
 import { sweepOrphanFiles } from "./services/orphans";
+import { seedLargeForDemo } from "./db/seed-large";
 
 /** The repository root (this file is server/index.ts). */
 const ROOT = fileURLToPath(new URL("..", import.meta.url));
@@ -99,8 +100,9 @@ export async function startServer(env: Env = readEnv(), options: StartOptions = 
     runMigrations(db);
     sweepOrphanFiles(db, dataDir, log);
     if (env.SEED !== "none" && countUsers(db) === 0) {
-      await seedDemo(db, { password: env.DEMO_PASSWORD });
+      const demo = await seedDemo(db, { password: env.DEMO_PASSWORD });
       log(`Seeded the demo lab into ${path.join(dataDir, "thetafold.db")}`);
+      if (env.SEED === "large") log(seedLargeForDemo(db, dataDir, demo.userIds));
     }
     const mailer = await createMailer({ smtpUrl: env.SMTP_URL, from: env.MAIL_FROM, db });
     cleanup.unshift(() => mailer.close());
