@@ -199,7 +199,11 @@ export async function fitCommand(argv: readonly string[], io: CommandIo): Promis
   const fix = parseFix(args.values.get("fix"));
   const w = window(args);
   if (modelText !== "lowT") parseModel(modelText);
+  // Load the fitter while the file is read (module loading overlaps with the reading).
+  const engine = modelText === "lowT" ? import("@shared/fitting/linear") : import("@shared/fitting/fit-model");
+  engine.catch(() => undefined);
   const run = await loadRun(args, io);
+  await engine;
   const out = modelText === "lowT" ? await fitLowT(run, args) : await fitComposite(run, modelText, fix, w);
   for (const warning of out.warnings) io.stderr(`warning: ${warning}\n`);
   io.stdout(JSON.stringify(out, null, 2) + "\n");

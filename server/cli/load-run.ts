@@ -61,6 +61,10 @@ function heatCapacityUnit(text: string): HeatCapacityUnit {
 export async function loadRun(args: ParsedArgs, io: CommandIo): Promise<LoadedRun> {
   if (args.positional.length !== 1) throw new UsageError(args.positional.length === 0 ? "give the export FILE to read" : `give one FILE, not ${args.positional.length}`);
   const file = args.positional[0];
+  // mf-parser is the slowest module to load: start loading it now, while the file is read and reduced.
+  const formula = args.values.get("formula");
+  const formulaModule = formula === undefined ? null : import("@shared/ingest/formula");
+  formulaModule?.catch(() => undefined);
   let bytes: Buffer;
   try {
     bytes = readFileSync(file);
@@ -105,10 +109,8 @@ export async function loadRun(args: ParsedArgs, io: CommandIo): Promise<LoadedRu
 
   let molarMass = numberOption(args, "molar-mass", { positive: true }) ?? null;
   let atoms = numberOption(args, "atoms", { positive: true }) ?? null;
-  const formula = args.values.get("formula");
-  if (formula !== undefined && (molarMass === null || atoms === null)) {
-    // mf-parser is loaded only when a formula has to be read.
-    const { parseFormula } = await import("@shared/ingest/formula");
+  if (formula !== undefined && formulaModule !== null && (molarMass === null || atoms === null)) {
+    const { parseFormula } = await formulaModule;
     const info = parseFormula(formula);
     molarMass ??= info.molarMassGPerMol;
     atoms ??= info.atomsPerFormulaUnit;
