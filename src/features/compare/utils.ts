@@ -97,3 +97,23 @@ export function shortNumber(v: number): string {
 export function windowText(minK: number, maxK: number): string {
   return `${shortNumber(minK)}–${shortNumber(maxK)} K`;
 }
+
+/** A standard uncertainty on its own, to two significant digits (GUM §7.2.6), with its unit: "0.11 K". */
+export function sigmaText(sigma: number, unit: string): string {
+  if (!Number.isFinite(sigma)) return "–";
+  const v = sigma === 0 ? "0" : Math.abs(sigma) >= 1e4 || Math.abs(sigma) < 1e-3 ? sigma.toExponential(1) : String(Number(sigma.toPrecision(2)));
+  return unit ? `${v}\u00a0${unit}` : v;
+}
+
+/** Round ticks (1, 2, 5 per decade) inside [lo, hi] for a log axis. */
+export function logTicks(lo: number, hi: number): number[] {
+  const out: number[] = [];
+  if (!(lo > 0) || !(hi > lo)) return out;
+  for (let e = Math.floor(Math.log10(lo)); e <= Math.ceil(Math.log10(hi)); e++) {
+    for (const m of [1, 2, 5]) {
+      const v = m * 10 ** e;
+      if (v >= lo && v <= hi) out.push(Number(v.toPrecision(3)));
+    }
+  }
+  return out;
+}

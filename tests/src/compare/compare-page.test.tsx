@@ -116,7 +116,8 @@ describe("compare page", () => {
     expect(within(a4).getByText("3.75σ")).toBeTruthy();
     // Statistical σ with the value, systematic σ in its own column.
     expect(within(a4).getByText("305.00(80) K")).toBeTruthy();
-    expect(within(a4).getAllByText("0.6 K").length).toBeGreaterThan(0);
+    // Testing Library folds the no-break space before the unit into a plain space.
+    expect(within(a4).getByText("0.6 K")).toBeTruthy();
     expect(screen.getByText(/the fit windows differ/)).toBeTruthy();
     expect(within(groups).getByText("not comparable as such")).toBeTruthy();
     expect(screen.getByTestId("parameter-chart")).toBeTruthy();

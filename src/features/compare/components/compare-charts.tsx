@@ -15,7 +15,7 @@ import {
 import type { CompareCurve, ComparisonResult } from "@shared/schemas/compare";
 import { seriesColor } from "@/lib/series-palette";
 import { useSettings } from "@/lib/settings";
-import { collapsePoints, cOverT3Points, parameterSymbol, shortNumber, universalDebyeCurve } from "../utils";
+import { collapsePoints, cOverT3Points, logTicks, parameterSymbol, shortNumber, universalDebyeCurve } from "../utils";
 
 const AXIS = { stroke: "var(--color-line-strong)", tick: { fill: "var(--color-ink-muted)", fontSize: 12 } };
 const xLabel = (value: string) => ({ value, position: "insideBottom" as const, offset: -4, fill: "var(--color-ink-muted)", fontSize: 12 });
@@ -38,7 +38,12 @@ export function ParameterChart({ result }: { result: ComparisonResult }) {
   const counts = new Map(result.groups.map((g) => [g.key, g.n]));
   const pointsByGroup = result.groups.map(() => [] as { x: number; y: number; err: number; label: string }[]);
   const flagged: { x: number; y: number; err: number; label: string }[] = [];
+  let withoutX = 0;
   for (const r of result.rows) {
+    if (byX && r.x == null) {
+      withoutX += 1;
+      continue;
+    }
     const gi = groupIndex.get(r.groupKey) ?? 0;
     const k = perGroup.get(r.groupKey) ?? 0;
     perGroup.set(r.groupKey, k + 1);
@@ -67,7 +72,7 @@ export function ParameterChart({ result }: { result: ComparisonResult }) {
               type="number"
               dataKey="x"
               domain={xDomain}
-              ticks={byX ? undefined : result.groups.map((_, i) => i)}
+              ticks={byX ? [...new Set(xs)].sort((a, b) => a - b) : result.groups.map((_, i) => i)}
               tickFormatter={(v: number) => (byX ? shortNumber(v) : (result.groups[Math.round(v)]?.label ?? ""))}
               allowDecimals={byX}
               label={xLabel(byX ? "composition x" : "batch")}
@@ -101,6 +106,7 @@ export function ParameterChart({ result }: { result: ComparisonResult }) {
       <figcaption className="text-xs text-ink-muted">
         {sym} of each approved fit with its error bar (statistical ⊕ systematic σ); diamonds are the weighted means of the groups with
         their σ; triangles are fits more than {result.thresholdSigma}σ from their group&apos;s weighted mean.
+        {withoutX > 0 && ` ${withoutX} fit${withoutX === 1 ? "" : "s"} of samples without a composition x ${withoutX === 1 ? "is" : "are"} in the tables only.`}
       </figcaption>
     </figure>
   );
@@ -159,7 +165,7 @@ export function CT3Chart({ curves }: { curves: readonly CompareCurve[] }) {
         <ResponsiveContainer width="100%" height="100%">
           <ComposedChart margin={{ top: 12, right: 20, bottom: 12, left: 16 }}>
             <CartesianGrid stroke="var(--color-line)" strokeDasharray="2 4" />
-            <XAxis type="number" dataKey="x" scale="log" domain={domain} allowDataOverflow tickFormatter={shortNumber} label={xLabel("T (K)")} height={44} {...AXIS} />
+            <XAxis type="number" dataKey="x" scale="log" domain={domain} allowDataOverflow ticks={logTicks(domain[0], domain[1])} tickFormatter={shortNumber} label={xLabel("T (K)")} height={44} {...AXIS} />
             <YAxis type="number" dataKey="y" width={76} domain={["auto", "auto"]} tickFormatter={shortNumber} label={yLabel("C/T³ (J/(mol·K⁴))")} {...AXIS} />
             {series.map(({ c, pts }, i) => (
               <Scatter key={c.fitId} name={c.label} data={pts} fill={seriesColor(i, resolvedTheme)} line={{ stroke: seriesColor(i, resolvedTheme), strokeWidth: 1 }} shape="circle" isAnimationActive={false} />

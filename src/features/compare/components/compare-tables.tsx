@@ -2,7 +2,7 @@ import type { ComparisonResult } from "@shared/schemas/compare";
 import { Badge } from "@/components/ui/badge";
 import { MeasuredValue } from "@/components/ui/measured-value";
 import { cn } from "@/lib/cn";
-import { parameterSymbol, shortNumber, windowText } from "../utils";
+import { parameterSymbol, shortNumber, sigmaText, windowText } from "../utils";
 
 const TH = "px-3 py-2 text-left text-xs font-semibold tracking-wide text-ink-muted uppercase";
 const TD = "px-3 py-2 align-top";
@@ -28,11 +28,11 @@ export function GroupStatsTable({ result }: { result: ComparisonResult }) {
             <th scope="col" className={TH} title="χ² of the rows about the weighted mean over n − 1">
               χ²/(n−1)
             </th>
-            <th scope="col" className={TH}>
+            <th scope="col" className={TH} title="Plain mean, with the standard deviation of the mean s/√n">
               Unweighted mean
             </th>
-            <th scope="col" className={TH}>
-              Spread (s)
+            <th scope="col" className={TH} title="Sample standard deviation s (n − 1)">
+              Spread s
             </th>
             <th scope="col" className={TH}>
               Flagged
@@ -56,9 +56,9 @@ export function GroupStatsTable({ result }: { result: ComparisonResult }) {
               </td>
               <td className={cn(TD, "font-mono")}>{g.reducedChiSquare != null ? shortNumber(g.reducedChiSquare) : "–"}</td>
               <td className={TD}>
-                <MeasuredValue value={g.unweightedMean} unit={unit} />
+                <MeasuredValue value={g.unweightedMean} sigma={g.standardError ?? undefined} unit={unit} />
               </td>
-              <td className={TD}>{g.spread != null ? <MeasuredValue value={g.spread} unit={unit} /> : <span className="text-ink-muted">–</span>}</td>
+              <td className={cn(TD, "font-mono whitespace-nowrap")}>{g.spread != null ? sigmaText(g.spread, unit) : <span className="text-ink-muted">–</span>}</td>
               <td className={cn(TD, "font-mono")}>{g.flaggedCount > 0 ? <span className="font-semibold text-danger">{g.flaggedCount}</span> : "0"}</td>
             </tr>
           ))}
@@ -120,7 +120,7 @@ export function CompareRowsTable({ result }: { result: ComparisonResult }) {
                 <MeasuredValue value={r.value} sigma={r.sigmaStat ?? undefined} unit={r.unit} />
                 {r.derivedFrom && <span className="ml-1 text-xs text-ink-muted">(from β)</span>}
               </td>
-              <td className={TD}>{r.sigmaSys != null ? <MeasuredValue value={r.sigmaSys} unit={r.unit} /> : <span className="text-ink-muted">–</span>}</td>
+              <td className={cn(TD, "font-mono whitespace-nowrap")}>{r.sigmaSys != null ? sigmaText(r.sigmaSys, r.unit) : <span className="text-ink-muted">–</span>}</td>
               <td className={cn(TD, "font-mono")}>{r.deviationSigma != null ? `${shortNumber(r.deviationSigma)}σ` : "–"}</td>
               <td className={TD}>{r.model}</td>
               <td className={cn(TD, "font-mono whitespace-nowrap")}>{windowText(r.windowMinK, r.windowMaxK)}</td>
