@@ -705,6 +705,11 @@ export async function buildBundle(deps: { db: Db; dataDir: string; publicUrl?: s
     );
   } catch (err) {
     rmSync(tmp, { force: true });
+    if (err instanceof Error && /^stored file .* has SHA-256/.test(err.message)) {
+      console.error(`[integrity] bundle "${plan.name}" of lab ${plan.labId}: ${err.message}`);
+      audit(db, { labId: plan.labId, userId: plan.userId, action: "bundle.integrity_failed", target: plan.name, details: { reason: err.message } });
+      throw new HttpError(500, "INTERNAL", "A stored raw file no longer matches its SHA-256, so no bundle was built; the problem was logged for the lab");
+    }
     throw err;
   }
   onProgress({ type: "progress", phase: "storing", done: 0, total: 1, label: "storing the zip" });

@@ -345,6 +345,13 @@ export function compareFits(db: Db, labId: string, input: CompareInput): Compari
         r.flagged = weighted.length > 1 && r.deviationSigma > OUTLIER_THRESHOLD_SIGMA;
       }
     }
+    if (weighted.length === 2 && weighted.every((r) => r.flagged)) {
+      notes.push({
+        groupKey: key,
+        kind: "pair",
+        message: `${g.label}: its two fits disagree by more than ${OUTLIER_THRESHOLD_SIGMA}σ; with two fits the rule flags both and cannot say which one is off.`,
+      });
+    }
     const um = unweightedMean(g.rows.map((r) => r.value));
     const fitsInGroup = g.rows.map((r) => rowFits.get(r.fitId)!);
     const modelSet = [...new Set(g.rows.map((r) => r.model))];

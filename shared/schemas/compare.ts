@@ -96,7 +96,8 @@ export type CompareGroup = z.infer<typeof CompareGroupSchema>;
 
 export const CompareNoteSchema = z.object({
   groupKey: z.string().nullable(),
-  kind: z.enum(["models", "windows", "derived", "no-sigma"]),
+  /** models/windows: rows not comparable as such; derived: θ_D from β; no-sigma: rows left out of weighted means; pair: both fits of a group of two flagged. */
+  kind: z.enum(["models", "windows", "derived", "no-sigma", "pair"]),
   message: z.string(),
 });
 export type CompareNote = z.infer<typeof CompareNoteSchema>;

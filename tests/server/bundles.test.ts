@@ -232,6 +232,20 @@ describe("tampering", () => {
   });
 });
 
+describe("a corrupted raw file", () => {
+  it("stops the build with 500, records nothing and logs it", async () => {
+    const t2 = makeTestApp();
+    const c2 = await seedRoles(t2);
+    const s = seedSeries(t2.db, t2.dataDir, c2.lab.id, c2.users.lead.id);
+    writeFileSync(storedFilePath(t2.dataDir, s.a[0].rawSha256), "changed on disk");
+    const res = await c2.agents.lead.post(`/api/labs/${c2.lab.id}/bundles`).send({ name: "broken", sampleIds: [s.a[0].sampleId] });
+    expect(res.status).toBe(500);
+    expect(ApiErrorSchema.parse(res.body).error.message).toMatch(/no longer matches its SHA-256/);
+    expect((await c2.agents.lead.get(`/api/labs/${c2.lab.id}/bundles`)).body).toEqual([]);
+    expect(t2.db.select().from(auditLog).where(eq(auditLog.action, "bundle.integrity_failed")).all()).toHaveLength(1);
+  });
+});
+
 describe("reproducibility", () => {
   it("two builds of the same selection have the same payload manifest (and, on one day, the same zip)", async () => {
     const body = { name: "Batch A again", sampleIds: series.a.map((x) => x.sampleId), fitIds: [series.a[0].fitIds[0]] };

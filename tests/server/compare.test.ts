@@ -111,6 +111,19 @@ describe("GET /api/labs/:labId/compare", () => {
     expect(r.notes.filter((n) => n.groupKey === r.groups[0].key).map((n) => n.kind).sort()).toEqual(["models", "windows"]);
   });
 
+  it("flags both fits of a group of two that disagree, and says the rule cannot tell which is off", async () => {
+    const t2 = makeTestApp();
+    const c2 = await seedRoles(t2);
+    const batch = addBatch(t2.db, c2.lab.id, "PAIR");
+    // 250 ± 1 and 260 ± 1 K: weighted mean 255 K, each 5σ away (direct arithmetic).
+    addSampleWithFits(t2.db, t2.dataDir, c2.lab.id, c2.users.lead.id, { label: "P1", batchId: batch, fits: [{ parameters: debyeParams(250) }] });
+    addSampleWithFits(t2.db, t2.dataDir, c2.lab.id, c2.users.lead.id, { label: "P2", batchId: batch, fits: [{ parameters: debyeParams(260) }] });
+    const r = ComparisonResultSchema.parse((await c2.agents.guest.get(`/api/labs/${c2.lab.id}/compare`)).body);
+    expect(r.rows.map((x) => x.flagged)).toEqual([true, true]);
+    expectClose(r.rows[0].deviationSigma!, 5, { rel: 1e-12 });
+    expect(r.notes.map((n) => n.kind)).toContain("pair");
+  });
+
   it("refuses a batch of another lab with 404 and a bad parameter name with 400", async () => {
     const other = (await cast.agents.outsider.get(`/api/labs/${cast.otherLab.id}/compare`)).body;
     expect(ComparisonResultSchema.parse(other).rows).toEqual([]);
