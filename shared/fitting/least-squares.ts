@@ -15,18 +15,27 @@
  *   scaling, Moré 1978, updated as a running maximum), which makes λ·I act like λ·diag(JᵀJ).
  * - It always takes its step (no rejection; it only remembers the best point), stops only at
  *   maxIterations or when χ² ≤ errorTolerance (absolute), and reports neither convergence nor
- *   covariance. We run it in short bursts and, between bursts, take Gauss–Newton steps of our own with
- *   backtracking; the Gauss–Newton predicted decrease gᵀ(JᵀJ)⁻¹g (g = Jᵀr, whitened) is our convergence
- *   test: it is exactly χ²(p) − χ²_min for a linear model, so "predicted decrease ≤ tol·χ²" says χ² is
- *   at its minimum to a relative tol, and the parameters are within √(tol·dof) standard errors of it.
- * - It receives our own Jacobian (analytic when the model gives one, else central differences with
- *   step ε^(1/3)·|p|), never its default coarse forward difference (fixed step 0.1).
+ *   covariance. So it runs in bursts (2, 4, 8, … up to 32 iterations) from the best point so far; after
+ *   each burst we take up to three steps of our own: Gauss–Newton first, Marquardt-damped with
+ *   rejection when that fails to lower χ² (damping update of Nielsen, IMM-REP-1999-05), no parameter
+ *   moving by more than |p_j| + 10/D_j in one step. From close by these finish the job (Gauss–Newton
+ *   converges quadratically there); from far away the package does most iterations
+ *   (result.packageIterations says how many).
+ * - Convergence is our test: the Gauss–Newton predicted decrease gᵀ(JᵀJ)⁻¹g (g = Jᵀr, whitened) is
+ *   exactly χ²(p) − χ²_min for a linear model, so "predicted decrease ≤ chiSquareTolerance·χ²" (1e-14)
+ *   says χ² is at its minimum to that relative precision, with the parameters within
+ *   √(tol·dof) standard errors of it. Also converged: no damped step lowers χ² while the prediction is
+ *   below 1e-9·χ² (the rounding floor). Not converged: the iteration cap, or three rounds without any
+ *   decrease of χ² ("no-progress").
+ * - It receives our own Jacobian (analytic when the model gives one, else a five-point central
+ *   difference with step ε^(1/3)·|p|), never its default coarse forward difference (fixed step 0.1).
  *
  * Covariance at the solution: C = (JᵀWJ)⁻¹ with W = diag(1/σ²) ("unscaled", right when σ are true
  * standard uncertainties) and s²·C with s² = χ²/(N − k) ("scaled", the usual choice when σ are only
  * relative). It is formed from the Householder QR of the whitened, column-normalised Jacobian and the
- * SVD (ml-matrix) of its small triangular factor, which avoids squaring the condition number; a numerically rank-deficient Jacobian (smallest/largest
- * singular value below 1e-12, or 1e-8 with a finite-difference Jacobian) gives covariance null: the free parameters cannot be separated by the data.
+ * SVD (ml-matrix) of its small triangular factor, which avoids squaring the condition number. A
+ * numerically rank-deficient Jacobian (smallest/largest singular value below 1e-12, or 1e-8 with a
+ * finite-difference Jacobian) gives covariance null: the data cannot separate the free parameters.
  * See Press et al., Numerical Recipes 3rd ed., §15.4–15.5; Bevington & Robinson, Data Reduction and
  * Error Analysis, 3rd ed., ch. 8.
  *
@@ -107,8 +116,10 @@ export interface LeastSquaresResult {
    * Inference, 2nd ed. (2002), §2.2 and §6.4; Schwarz, Ann. Statist. 6 (1978) 461.
    */
   informationCriteria: "known-sigma" | "estimated-sigma";
-  /** Package iterations plus our own Gauss–Newton steps. */
+  /** Package iterations plus our own (Gauss–Newton / Marquardt) steps. */
   iterations: number;
+  /** How many of those iterations ml-levenberg-marquardt ran. */
+  packageIterations: number;
   converged: boolean;
   stopReason: StopReason;
   /** N. */
@@ -131,6 +142,11 @@ const FD_STEP = Math.cbrt(EPSILON);
  */
 const RANK_TOLERANCE_ANALYTIC = 1e-12;
 const RANK_TOLERANCE_FINITE_DIFFERENCE = 1e-8;
+/**
+ * Our own steps per round between package bursts: enough for Gauss–Newton to finish from close by
+ * (it converges quadratically there), few enough that from far away the package does the travelling.
+ */
+const OWN_STEPS_PER_ROUND = 3;
 /** In one of our own steps a parameter moves at most |p_j| + this many 1/D_j (its statistical scale). */
 const STEP_CAP_SCALES = 10;
 /** No damped step lowers χ², and Gauss–Newton predicts less than this fraction of it: the rounding floor. */
@@ -216,7 +232,7 @@ export function fitLeastSquares(
   if (jacobian !== undefined && typeof jacobian !== "function") {
     throw new TypeError("options.jacobianFunction must be a function (params, x) => dF/dp");
   }
-  const maxIterations = options.maxIterations ?? 300;
+  const maxIterations = options.maxIterations ?? 1000;
   if (!(Number.isInteger(maxIterations) && maxIterations >= 1)) {
     throw new RangeError(`options.maxIterations must be an integer ≥ 1 (got ${maxIterations})`);
   }
@@ -360,36 +376,47 @@ export function fitLeastSquares(
   const finish = (
     q: readonly number[],
     iterations: number,
+    packageIterations: number,
     converged: boolean,
     stopReason: StopReason,
     jacobianAtSolution: Float64Array | null = null,
   ) =>
     buildResult({
-      q, iterations, converged, stopReason, n, k, p, free, initial, x, y, invSigma, model,
+      q, iterations, packageIterations, converged, stopReason, n, k, p, free, initial, x, y, invSigma, model,
       jacobianAtSolution: jacobianAtSolution ?? (k > 0 ? linearise(q).jac : new Float64Array(0)),
       whitenedResiduals: lastTrial !== null && lastTrial.q === q ? lastTrial.r : null,
       sigmaGiven: sigma !== null, lo, hi,
       rankTolerance: jacobian === undefined ? RANK_TOLERANCE_FINITE_DIFFERENCE : RANK_TOLERANCE_ANALYTIC,
     });
 
-  if (k === 0) return finish([], 0, true, "no-free-parameters");
+  if (k === 0) return finish([], 0, 0, true, "no-free-parameters");
 
   let q = free.map((j) => initial[j]);
-  let state = linearise(q);
-  if (!Number.isFinite(state.chi2)) {
+  let chi2 = chiSquareOf(q);
+  if (!Number.isFinite(chi2)) {
     const full = toFull(q);
     const bad = x.findIndex((xi) => !Number.isFinite(model(full, xi)));
-    throw new RangeError(
-      bad >= 0
-        ? `the model is not finite at the initial values (at data.x[${bad}] = ${x[bad]})`
-        : "the model's Jacobian is not finite at the initial values",
-    );
+    throw new RangeError(`the model is not finite at the initial values (at data.x[${bad}] = ${x[bad]})`);
   }
-  let chi2 = state.chi2;
   const yScale = yWhite.reduce((sum, v) => sum + v * v, 0);
 
-  // Running-maximum column scaling (MINPACK lmder, mode 1).
-  const scale = columnNorms(state.jac).map((c, j) => (c > 0 && Number.isFinite(c) ? c : 1 / (Math.abs(q[j]) || 1)));
+  // Running-maximum column scaling (MINPACK lmder, mode 1), started from the Jacobian on about 64
+  // evenly spread points (norms scaled up by √(N/m)); the full Jacobian updates it from then on.
+  const scale = (() => {
+    const stride = Math.max(1, Math.floor(n / 64));
+    const grad = gradientAt(toFull(q));
+    const sums = new Array<number>(k).fill(0);
+    let count = 0;
+    for (let i = 0; i < n; i += stride) {
+      const g = grad(x[i]);
+      for (let j = 0; j < k; j++) sums[j] += (g[j] * invSigma[i]) ** 2;
+      count++;
+    }
+    return sums.map((sq, j) => {
+      const c = Math.sqrt((sq * n) / count);
+      return c > 0 && Number.isFinite(c) ? c : 1 / (Math.abs(q[j]) || 1);
+    });
+  })();
   const updateScale = (jac: Float64Array) => {
     const norms = columnNorms(jac);
     for (let j = 0; j < k; j++) if (Number.isFinite(norms[j]) && norms[j] > scale[j]) scale[j] = norms[j];
@@ -412,11 +439,13 @@ export function fitLeastSquares(
   };
 
   let iterations = 0;
+  let packageIterations = 0;
   let burst = 2;
   /** The Jacobian to build the covariance from: the last linearisation, if the step after it was negligible. */
   let finalJacobian: Float64Array | null = null;
   let stalledRounds = 0;
-  let mu = 1e-3;
+  // Marquardt damping of our own steps, relative to the unit diagonal; 0 = plain Gauss–Newton, tried first.
+  let mu = 0;
   let nu = 2;
   let stopReason: StopReason | null = null;
 
@@ -439,6 +468,7 @@ export function fitLeastSquares(
       jacobianFunction: packageJacobian,
     });
     iterations += Math.max(run.iterations, 1);
+    packageIterations += run.iterations;
     // With unit weights on whitened data the package's parameterError is exactly χ² at its best point.
     const candidate = clampToBounds(run.parameterValues.map((v, j) => v / scale[j]));
     if (candidate.every(Number.isFinite) && run.parameterError < chi2) {
@@ -448,8 +478,8 @@ export function fitLeastSquares(
 
     // 2. Our own steps: the undamped Gauss–Newton prediction decides convergence; Marquardt-damped
     //    steps with rejection (Nielsen's damping update, IMM report 1999) make the progress.
-    while (stopReason === null && iterations < maxIterations) {
-      state = linearise(q);
+    for (let own = 0; own < OWN_STEPS_PER_ROUND && stopReason === null && iterations < maxIterations; own++) {
+      const state = linearise(q);
       if (!Number.isFinite(state.chi2)) break;
       chi2 = state.chi2;
       updateScale(state.jac);
@@ -480,7 +510,7 @@ export function fitLeastSquares(
       for (let tries = 0; tries < 12 && !accepted; tries++) {
         const step = mu === 0 ? gaussNewton : dampedStep(ne, mu, k);
         if (step === null) {
-          mu = Math.max(mu, 1e-6) * nu;
+          mu = Math.max(mu, 1e-4) * nu;
           nu *= 2;
           continue;
         }
@@ -501,10 +531,10 @@ export function fitLeastSquares(
           chi2 = chi2Trial;
           accepted = true;
           mu = mu * Math.max(1 / 3, 1 - (2 * rho - 1) ** 3);
-          if (mu < 1e-12) mu = 0;
+          if (mu < 1e-8) mu = 0;
           nu = 2;
         } else {
-          mu = Math.max(mu, 1e-6) * nu;
+          mu = Math.max(mu, 1e-4) * nu;
           nu *= 2;
         }
       }
@@ -516,7 +546,7 @@ export function fitLeastSquares(
           stopReason = "chi-square-stationary";
         }
         // Otherwise hand back to the package for another burst.
-        mu = 1e-3;
+        mu = 0;
         nu = 2;
         break;
       }
@@ -531,7 +561,7 @@ export function fitLeastSquares(
   }
 
   const converged = stopReason === "chi-square-stationary" || stopReason === "exact-fit";
-  return finish(q, iterations, converged, stopReason, finalJacobian);
+  return finish(q, iterations, packageIterations, converged, stopReason, finalJacobian);
 }
 
 interface NormalEquations {
@@ -612,6 +642,7 @@ function dampedStep(ne: NormalEquations, mu: number, k: number): { delta: number
 interface BuildArgs {
   q: readonly number[];
   iterations: number;
+  packageIterations: number;
   converged: boolean;
   stopReason: StopReason;
   n: number;
@@ -703,6 +734,7 @@ function buildResult(args: BuildArgs): LeastSquaresResult {
     bic,
     informationCriteria: sigmaGiven ? "known-sigma" : "estimated-sigma",
     iterations: args.iterations,
+    packageIterations: args.packageIterations,
     converged: args.converged,
     stopReason: args.stopReason,
     pointCount: n,

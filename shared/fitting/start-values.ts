@@ -113,7 +113,7 @@ export function startValueCandidates(
   const n = t.length;
   if (c.length !== n) throw new RangeError(`cp must have length ${n} (got ${c.length})`);
   if (sigma !== null && sigma.length !== n) throw new RangeError(`sigma must have length ${n} (got ${sigma.length})`);
-  if (n < 3) throw new RangeError(`start values need at least 3 points (got ${n})`);
+  if (n < 2) throw new RangeError(`start values need at least 2 points (got ${n})`);
   const atoms = options.atomsPerFormulaUnit;
   if (!(atoms > 0) || !Number.isFinite(atoms)) throw new RangeError(`atomsPerFormulaUnit must be > 0 (got ${atoms})`);
   const maxCandidates = options.maxCandidates ?? 4;
