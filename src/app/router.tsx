@@ -53,6 +53,7 @@ export function appRoutes(queryClient: QueryClient): RouteObject[] {
                 { path: "samples", lazy: lazy(() => import("./routes/samples")) },
                 { path: "samples/:sampleId", lazy: lazy(() => import("./routes/sample")) },
                 { path: "runs/:runId", lazy: lazy(() => import("./routes/run")) },
+                { path: "runs/:runId/fit", lazy: lazy(() => import("./routes/fit-workspace")) },
                 { path: "compare", lazy: lazy(() => import("./routes/compare")) },
                 { path: "bundles", lazy: lazy(() => import("./routes/bundles")) },
                 { path: "lab", lazy: lazy(() => import("./routes/lab")) },

@@ -159,8 +159,8 @@ describe("fit workspace page", () => {
     // Statistical uncertainty with the value, the mass systematic in its own column.
     // (Testing Library folds the no-break space before the unit into a plain space.)
     expect(within(theta).getByText("342.8(1.2) K")).toBeTruthy();
-    const [, , massCell] = within(theta).getAllByRole("cell");
-    expect(massCell.textContent).toMatch(/^± 0\.4\s+K/);
+    const [, massCell] = within(theta).getAllByRole("cell");
+    expect(massCell.textContent).toBe("± 0.4");
     expect(within(table).getByRole("row", { name: /n_D/ }).textContent).toMatch(/fixed/);
     expect(screen.getByText(/strongly correlated \(r = -0.962\)/)).toBeTruthy();
     const matrix = screen.getByRole("table", { name: "Correlation matrix of the free parameters" });

@@ -137,7 +137,7 @@ export function FitWorkspace({ labId, run, canWrite, canApprove }: FitWorkspaceP
   const lastError = preview.error ?? save.error;
 
   return (
-    <div className="grid gap-5 xl:grid-cols-[minmax(0,1.55fr)_minmax(24rem,1fr)]">
+    <div className="grid gap-5 xl:grid-cols-[minmax(0,1.35fr)_minmax(27rem,1fr)]">
       {/* Left: data, window, curve, residuals, and the derived views */}
       <div className="min-w-0 space-y-5">
         <Card>
@@ -205,6 +205,29 @@ export function FitWorkspace({ labId, run, canWrite, canApprove }: FitWorkspaceP
             ) : null}
           </CardBody>
         </Card>
+
+        {rank ? (
+          <Card>
+            <CardHeader id="rank-title" title="Ranking of candidate models" description="Each candidate fitted to the same window; ordered by BIC." />
+            <CardBody>
+              <RankingTable
+                result={rank}
+                onUse={
+                  canWrite
+                    ? (i) => {
+                        const e = rank.entries[i];
+                        setDefinition(e.model);
+                        preview.mutate(
+                          { model: e.model, window },
+                          { onSuccess: (data) => setOutcome({ data, source: `Preview of ${e.label} — not saved` }) },
+                        );
+                      }
+                    : undefined
+                }
+              />
+            </CardBody>
+          </Card>
+        ) : null}
 
         <Card>
           <div role="tablist" aria-label="Derived views" className="flex gap-1 border-b border-line px-3 pt-2">
@@ -407,28 +430,6 @@ export function FitWorkspace({ labId, run, canWrite, canApprove }: FitWorkspaceP
           </EmptyState>
         )}
 
-        {rank ? (
-          <Card>
-            <CardHeader id="rank-title" title="Ranking of candidate models" description="Each candidate fitted to the same window; ordered by BIC." />
-            <CardBody>
-              <RankingTable
-                result={rank}
-                onUse={
-                  canWrite
-                    ? (i) => {
-                        const e = rank.entries[i];
-                        setDefinition(e.model);
-                        preview.mutate(
-                          { model: e.model, window },
-                          { onSuccess: (data) => setOutcome({ data, source: `Preview of ${e.label} — not saved` }) },
-                        );
-                      }
-                    : undefined
-                }
-              />
-            </CardBody>
-          </Card>
-        ) : null}
       </div>
     </div>
   );
