@@ -1,4 +1,4 @@
-import { useState } from "react";
+import { useMemo, useState } from "react";
 import type { QueryClient } from "@tanstack/react-query";
 import { isRouteErrorResponse, Link, useParams, useRouteError, type LoaderFunctionArgs } from "react-router-dom";
 import type { RunDetail } from "@shared/schemas/runs";
@@ -54,6 +54,9 @@ export function Component() {
   const [logT, setLogT] = useState(false);
   const [logCp, setLogCp] = useState(false);
   const [lowTMax, setLowTMax] = useState("15");
+  const lowLimit = Number(lowTMax) > 0 ? Number(lowTMax) : 15;
+  const points = run.data?.points;
+  const lowT = useMemo(() => (points ?? []).filter((p) => p.temperatureK <= lowLimit), [points, lowLimit]);
 
   if (run.isPending) return <LoadingBlock label="Loading the run…" />;
   if (run.isError) {
@@ -62,8 +65,6 @@ export function Component() {
   }
   const r = run.data;
   const n = r.atomsPerFormulaUnit;
-  const lowLimit = Number(lowTMax) > 0 ? Number(lowTMax) : 15;
-  const lowT = r.points.filter((p) => p.temperatureK <= lowLimit);
   const fieldShown = r.fieldT !== null || Boolean(r.mapping.columns.field);
 
   return (

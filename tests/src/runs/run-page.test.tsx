@@ -59,7 +59,8 @@ describe("run page", { timeout: 60_000 }, () => {
   it("lists the points 100 to a page with their mask flags, and offers both downloads", async () => {
     stubFetch({ "GET /api/me": reply(200, meFixture("guest")), "GET /api/labs/:labId/runs/:runId": reply(200, runFixture()) });
     renderApp(`/labs/${TEST_LAB.labId}/runs/r1`);
-    expect(await screen.findByRole("heading", { name: "Zero-field scan" })).toBeTruthy();
+    // The first visit imports the lazy route module (recharts and all): on a loaded machine that takes a while.
+    expect(await screen.findByRole("heading", { name: "Zero-field scan" }, { timeout: 30_000 })).toBeTruthy();
     const table = screen.getByRole("table", { name: /Reduced points of the run/ });
     expect(within(table).getAllByRole("row")).toHaveLength(101);
     const masked = within(table).getByRole("checkbox", { name: "Mask point 3 at 5 K" }) as HTMLInputElement;
@@ -80,7 +81,7 @@ describe("run page", { timeout: 60_000 }, () => {
       "GET /api/labs/:labId/samples": reply(200, []),
     });
     renderApp(`/labs/${TEST_LAB.labId}/runs/r1`);
-    const box = (await screen.findByRole("checkbox", { name: "Mask point 7 at 9 K" })) as HTMLInputElement;
+    const box = (await screen.findByRole("checkbox", { name: "Mask point 7 at 9 K" }, { timeout: 30_000 })) as HTMLInputElement;
     box.focus();
     await userEvent.keyboard(" ");
     await waitFor(() => expect(stub.calls.filter((c) => c.method === "PATCH")).toHaveLength(1));
@@ -94,7 +95,7 @@ describe("run page", { timeout: 60_000 }, () => {
       "PATCH /api/labs/:labId/runs/:runId/mask": reply(200, { runId: "r1", maskedCount: 4, changed: 3 }),
     });
     renderApp(`/labs/${TEST_LAB.labId}/runs/r1`);
-    await userEvent.type(await screen.findByRole("textbox", { name: "From T (K)" }), "10");
+    await userEvent.type(await screen.findByRole("textbox", { name: "From T (K)" }, { timeout: 30_000 }), "10");
     await userEvent.type(screen.getByRole("textbox", { name: "to T (K)" }), "12");
     await userEvent.click(screen.getByRole("button", { name: "Mask 3 in range" }));
     await waitFor(() => expect(stub.calls.filter((c) => c.method === "PATCH")).toHaveLength(1));

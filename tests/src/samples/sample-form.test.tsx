@@ -51,7 +51,8 @@ describe("samples page", { timeout: 60_000 }, () => {
   it("lists the lab's samples with a link to each", async () => {
     setup("guest", [sample(), sample({ id: "s2", label: "SIG-B1-b", runCount: 0 })]);
     renderApp(PAGE);
-    const table = await screen.findByRole("table", { name: "Samples of the lab" });
+    // The first visit imports the lazy route module: on a loaded machine that takes a while.
+    const table = await screen.findByRole("table", { name: "Samples of the lab" }, { timeout: 30_000 });
     expect(within(table).getByRole("link", { name: "SIG-B1-a" })).toHaveProperty("href", expect.stringContaining(`${PAGE}/s1`));
     expect(within(table).getAllByRole("row")).toHaveLength(3);
     // A guest gets no create buttons.
@@ -61,14 +62,14 @@ describe("samples page", { timeout: 60_000 }, () => {
   it("says what to do next when the lab has no samples", async () => {
     setup("researcher", []);
     renderApp(PAGE);
-    expect(await screen.findByText("No samples in this lab yet")).toBeTruthy();
+    expect(await screen.findByText("No samples in this lab yet", {}, { timeout: 30_000 })).toBeTruthy();
     expect(screen.getByRole("button", { name: "add a sample" })).toBeTruthy();
   });
 
   it("sends the search and batch filter to the server", async () => {
     setup("guest", [sample()]);
     renderApp(PAGE);
-    await screen.findByRole("table", { name: "Samples of the lab" });
+    await screen.findByRole("table", { name: "Samples of the lab" }, { timeout: 30_000 });
     await userEvent.selectOptions(screen.getByRole("combobox", { name: "Batch" }), "b1");
     await userEvent.type(screen.getByRole("searchbox", { name: "Search" }), "Ge");
     await waitFor(() => {
@@ -82,7 +83,7 @@ describe("new sample form", { timeout: 60_000 }, () => {
   it("shows the shared schema's field errors without calling the server", async () => {
     const stub = setup("researcher", [sample()]);
     renderApp(PAGE);
-    await userEvent.click(await screen.findByRole("button", { name: "New sample" }));
+    await userEvent.click(await screen.findByRole("button", { name: "New sample" }, { timeout: 30_000 }));
     const form = screen.getByRole("form", { name: "New sample" });
     await userEvent.click(within(form).getByRole("button", { name: "Add sample" }));
     expect(await within(form).findByText("Enter a label")).toBeTruthy();
@@ -100,7 +101,7 @@ describe("new sample form", { timeout: 60_000 }, () => {
   it("shows molar mass and atom count from the formula as it is typed, and asks for a reason when they are overridden", async () => {
     const stub = setup("researcher", [sample()]);
     renderApp(PAGE);
-    await userEvent.click(await screen.findByRole("button", { name: "New sample" }));
+    await userEvent.click(await screen.findByRole("button", { name: "New sample" }, { timeout: 30_000 }));
     const form = screen.getByRole("form", { name: "New sample" });
     await userEvent.type(within(form).getByLabelText("Formula"), "Al2O3");
     // Al2O3: 101.961 g/mol, 5 atoms (IUPAC standard atomic weights, abridged).
@@ -120,7 +121,7 @@ describe("new sample form", { timeout: 60_000 }, () => {
       [`POST ${API}/samples`]: errorReply(404, "NOT_FOUND", "No such batch in this lab", [{ path: "batchId", message: "no such batch" }]),
     });
     renderApp(PAGE);
-    await userEvent.click(await screen.findByRole("button", { name: "New sample" }));
+    await userEvent.click(await screen.findByRole("button", { name: "New sample" }, { timeout: 30_000 }));
     const form = screen.getByRole("form", { name: "New sample" });
     await userEvent.type(within(form).getByLabelText("Label"), "SIG-B1-c");
     await userEvent.selectOptions(within(form).getByLabelText("Batch"), "b1");

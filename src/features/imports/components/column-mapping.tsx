@@ -1,4 +1,4 @@
-import { useId } from "react";
+import { memo, useId } from "react";
 import type { TableSummary } from "@shared/schemas/ingest";
 import { cn } from "@/lib/cn";
 import {
@@ -63,7 +63,7 @@ function UnitSelect<T extends string>({
  * The first rows of the file as read, with one control per column (what it holds) and one per unit.
  * A role belongs to one column: giving it to another column frees the first.
  */
-export function ColumnMapping({ table, draft, onChange, rows = 8 }: ColumnMappingProps) {
+export const ColumnMapping = memo(function ColumnMapping({ table, draft, onChange, rows = 8 }: ColumnMappingProps) {
   const unitText = (name: string | undefined) => {
     if (!name) return undefined;
     const i = table.header.indexOf(name);
@@ -165,4 +165,4 @@ export function ColumnMapping({ table, draft, onChange, rows = 8 }: ColumnMappin
       </fieldset>
     </div>
   );
-}
+});

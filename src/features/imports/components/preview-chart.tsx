@@ -1,4 +1,4 @@
-import { useState } from "react";
+import { memo, useState } from "react";
 import { CartesianGrid, ComposedChart, ReferenceLine, ResponsiveContainer, Scatter, Tooltip, XAxis, YAxis } from "recharts";
 import type { ReducedRun } from "@shared/schemas/ingest";
 import { seriesColor } from "@/lib/series-palette";
@@ -13,7 +13,7 @@ const PREVIEW_POINTS = 1500;
 const tick = (v: number) => (Math.abs(v) >= 1e4 || (Math.abs(v) < 1e-3 && v !== 0) ? v.toExponential(1) : String(Number(v.toPrecision(3))));
 
 /** The reduced curve(s) the file would give, one colour per field; the Dulong–Petit limit for sample runs. */
-export function PreviewChart({ runs, atomsPerFormulaUnit, unit }: { runs: readonly ReducedRun[]; atomsPerFormulaUnit: number | null; unit: string }) {
+export const PreviewChart = memo(function PreviewChart({ runs, atomsPerFormulaUnit, unit }: { runs: readonly ReducedRun[]; atomsPerFormulaUnit: number | null; unit: string }) {
   const [logT, setLogT] = useState(true);
   const { resolvedTheme } = useSettings();
   const series = runs.map((r) => {
@@ -61,4 +61,4 @@ export function PreviewChart({ runs, atomsPerFormulaUnit, unit }: { runs: readon
       ) : null}
     </figure>
   );
-}
+});

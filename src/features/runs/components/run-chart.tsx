@@ -1,3 +1,4 @@
+import { memo } from "react";
 import {
   CartesianGrid,
   ComposedChart,
@@ -40,7 +41,7 @@ function MaskedShape(props: { cx?: number; cy?: number }) {
  * One view of a run: points with error bars where σ exists, masked points as hollow diamonds, and in the
  * C/(3nR) view the Dulong–Petit line at 1. Above ~2,000 points the drawing is thinned (never the data).
  */
-export function RunChart({ points, view, atomsPerFormulaUnit, cpUnit, logX = false, logY = false, height = 320 }: RunChartProps) {
+export const RunChart = memo(function RunChart({ points, view, atomsPerFormulaUnit, cpUnit, logX = false, logY = false, height = 320 }: RunChartProps) {
   const shown = decimateForDisplay(points);
   const all = plotPoints(shown, view, atomsPerFormulaUnit);
   const useLogX = logX && view !== "ct";
@@ -133,4 +134,4 @@ export function RunChart({ points, view, atomsPerFormulaUnit, cpUnit, logX = fal
       </figcaption>
     </figure>
   );
-}
+});
