@@ -52,6 +52,35 @@ describe("fitHeatCapacity recovers the parameters of synthetic runs", () => {
     expectWithin3Sigma(fit, truth);
   });
 
+  it("γT + βT³ + Schottky (g fixed at 1), 200 points 0.4–15 K (synthetic, seed 110): gap and n_S within 3σ", () => {
+    const def: ModelDefinition = {
+      components: [{ kind: "electronic" }, { kind: "t3" }, { kind: "schottky" }],
+      parameters: { gRatio: { value: 1, fixed: true } },
+    };
+    const truth = [1e-3, 2e-4, 3, 0.05, 1];
+    const run = syntheticRun(def, 1, truth, { points: 200, tMinK: 0.4, tMaxK: 15 }, 0.005, createSeededRandom(110));
+    const fit = fitHeatCapacity(run, def, { atomsPerFormulaUnit: 1 });
+    expect(fit.converged).toBe(true);
+    expectWithin3Sigma(fit, truth.slice(0, 4));
+  });
+
+  it("nuclear A/T² + γT + βT³, 100 points 0.1–5 K (synthetic, seed 111): within 3σ", () => {
+    const def: ModelDefinition = { components: [{ kind: "nuclear" }, { kind: "electronic" }, { kind: "t3" }] };
+    const truth = [2e-5, 1e-3, 2e-4];
+    const run = syntheticRun(def, 1, truth, { points: 100, tMinK: 0.1, tMaxK: 5 }, 0.005, createSeededRandom(111));
+    const fit = fitHeatCapacity(run, def, { atomsPerFormulaUnit: 1 });
+    expectWithin3Sigma(fit, truth);
+  });
+
+  it("γT + Debye + two Einstein modes, 400 points (synthetic, seed 112): within 3σ, and the correlations are reported", () => {
+    const def: ModelDefinition = { components: [{ kind: "electronic" }, { kind: "debye" }, { kind: "einstein" }, { kind: "einstein" }] };
+    const truth = [2e-3, 200, 4, 60, 2, 150, 2];
+    const run = syntheticRun(def, 8, truth, { points: 400, tMinK: 2, tMaxK: 300 }, 0.003, createSeededRandom(112));
+    const fit = fitHeatCapacity(run, def, { atomsPerFormulaUnit: 8 });
+    expect(fit.parameterNames).toEqual(["gamma", "thetaD", "nD", "thetaE", "nE", "thetaE2", "nE2"]);
+    expectWithin3Sigma(fit, truth);
+  });
+
   it("without σ it weights points equally, says so, and still lands within 3 scaled errors (synthetic, seed 104)", () => {
     const truth = [1.2e-3, 320, 2];
     const run = syntheticRun(debyeDef, 2, truth, { points: 200, tMinK: 2, tMaxK: 300 }, 0.002, createSeededRandom(104));
