@@ -1,6 +1,7 @@
 import { createHash } from "node:crypto";
 import { existsSync } from "node:fs";
 import path from "node:path";
+import type request from "supertest";
 import { describe, expect, it } from "vitest";
 import { ApiErrorSchema } from "@shared/schemas/api-error";
 import {
@@ -19,10 +20,12 @@ type Agents = Awaited<ReturnType<typeof seedRoles>>["agents"];
 type Agent = Agents["lead"];
 
 const sha256 = (b: Buffer) => createHash("sha256").update(b).digest("hex");
-const binaryParser = (res: NodeJS.ReadableStream, cb: (err: Error | null, body: Buffer) => void) => {
+// superagent's parser callback: the response is a readable stream of the body's bytes.
+const binaryParser = (res: request.Response, cb: (err: Error | null, body: Buffer) => void) => {
   const chunks: Buffer[] = [];
-  res.on("data", (d: Buffer) => chunks.push(d));
-  res.on("end", () => cb(null, Buffer.concat(chunks)));
+  const stream = res as unknown as NodeJS.ReadableStream;
+  stream.on("data", (d: Buffer) => chunks.push(d));
+  stream.on("end", () => cb(null, Buffer.concat(chunks)));
 };
 
 async function setup(sample: Record<string, unknown> = { label: "QI-CU-01", formula: "Cu", massMg: 25, massSigmaMg: 0.01 }) {
