@@ -112,6 +112,15 @@ export function ParameterChart({ result }: { result: ComparisonResult }) {
   );
 }
 
+/** Markers per run in the collapse plot: enough to see the shape, few enough for a dozen runs in SVG (display only). */
+const COLLAPSE_POINTS_PER_RUN = 150;
+
+/** Every k-th point so that at most `max` remain, first and last kept (display only, never for computing). */
+function thin<T>(pts: readonly T[], max: number): T[] {
+  if (pts.length <= max) return [...pts];
+  return Array.from({ length: max }, (_, i) => pts[Math.round((i * (pts.length - 1)) / (max - 1))]);
+}
+
 /**
  * Every chosen run as C/(3nR) against T/θ_D over the universal Debye curve (the curve from shared/physics
  * debyeFunction). A solid with one Debye temperature lies on the curve; departures show where it is not one.
@@ -121,7 +130,10 @@ export function CollapseChart({ curves }: { curves: readonly CompareCurve[] }) {
   const [subtract, setSubtract] = useState(true);
   const usable = curves.filter((c) => c.thetaD != null && c.thetaD > 0);
   const universal = universalDebyeCurve(0.01, 2);
-  const series = usable.map((c) => ({ c, pts: collapsePoints(c.points, c.thetaD!, c.atomsPerFormulaUnit, c.gamma, subtract).filter((p) => p.x >= 0.01 && p.x <= 2) }));
+  const series = usable.map((c) => ({
+    c,
+    pts: thin(collapsePoints(c.points, c.thetaD!, c.atomsPerFormulaUnit, c.gamma, subtract).filter((p) => p.x >= 0.01 && p.x <= 2), COLLAPSE_POINTS_PER_RUN),
+  }));
   return (
     <figure className="space-y-2">
       <label className="inline-flex items-center gap-2 text-sm text-ink">
@@ -168,7 +180,7 @@ export function CT3Chart({ curves }: { curves: readonly CompareCurve[] }) {
             <XAxis type="number" dataKey="x" scale="log" domain={domain} allowDataOverflow ticks={logTicks(domain[0], domain[1])} tickFormatter={shortNumber} label={xLabel("T (K)")} height={44} {...AXIS} />
             <YAxis type="number" dataKey="y" width={76} domain={["auto", "auto"]} tickFormatter={shortNumber} label={yLabel("C/T³ (J/(mol·K⁴))")} {...AXIS} />
             {series.map(({ c, pts }, i) => (
-              <Scatter key={c.fitId} name={c.label} data={pts} fill={seriesColor(i, resolvedTheme)} line={{ stroke: seriesColor(i, resolvedTheme), strokeWidth: 1 }} shape="circle" isAnimationActive={false} />
+              <Line key={c.fitId} name={c.label} data={pts} dataKey="y" type="linear" dot={false} stroke={seriesColor(i, resolvedTheme)} strokeWidth={1.5} isAnimationActive={false} />
             ))}
             <Tooltip isAnimationActive={false} formatter={(v) => (typeof v === "number" ? shortNumber(v) : String(v))} labelFormatter={() => ""} />
             <Legend verticalAlign="top" height={28} wrapperStyle={{ fontSize: 12 }} />
