@@ -12,6 +12,7 @@ import type { ModelDefinition } from "@shared/physics/model-types";
 import { fitHeatCapacity } from "@shared/fitting/fit-model";
 import { fitLeastSquares } from "@shared/fitting/least-squares";
 import { createSeededRandom } from "../helpers/seeded-random";
+import { scaleSection } from "./scale";
 
 export interface BenchLine {
   label: string;
@@ -170,6 +171,7 @@ export const sections: BenchSection[] = [
     500,
     5,
   ),
+  scaleSection,
 ];
 
 function main(): void {
