@@ -1,16 +1,6 @@
 import { readFileSync, statSync } from "node:fs";
 import { NotAZipError, verifyBagZip } from "../services/bagit";
-
-/** Where the command writes: stdout gets the JSON report, stderr the usage and read errors. */
-export interface CommandIo {
-  stdout: (text: string) => void;
-  stderr: (text: string) => void;
-}
-
-const defaultIo: CommandIo = {
-  stdout: (t) => process.stdout.write(t),
-  stderr: (t) => process.stderr.write(t),
-};
+import { processIo, type CommandIo } from "./args";
 
 export const VERIFY_BUNDLE_USAGE = `Usage: thetafold verify-bundle FILE.zip
 
@@ -26,10 +16,10 @@ const MAX_ZIP_BYTES = 2 * 1024 ** 3;
 /**
  * `thetafold verify-bundle FILE.zip`.
  * @param args the arguments after the command name
- * @param io output sinks (tests capture them)
+ * @param io output sinks: stdout gets the JSON report, stderr usage and read errors (tests capture them)
  * @returns the exit status: 0 valid, 1 invalid, 2 bad input
  */
-export async function verifyBundleCommand(args: readonly string[], io: CommandIo = defaultIo): Promise<number> {
+export async function verifyBundleCommand(args: readonly string[], io: CommandIo = processIo): Promise<number> {
   if (args.includes("--help") || args.includes("-h")) {
     io.stdout(VERIFY_BUNDLE_USAGE);
     return 0;

@@ -5,6 +5,7 @@ import path from "node:path";
 import { strFromU8, strToU8, unzipSync, zipSync } from "fflate";
 import { describe, expect, it } from "vitest";
 import { BagVerifyReportSchema } from "@shared/schemas/bundles";
+import { main } from "../../server/cli/main";
 import { verifyBundleCommand } from "../../server/cli/verify-bundle";
 import {
   BAGIT_TXT,
@@ -178,6 +179,16 @@ describe("thetafold verify-bundle", () => {
     expect(await verifyBundleCommand([tampered], io)).toBe(1);
     const report = BagVerifyReportSchema.parse(JSON.parse(o.out));
     expect(report.failures).toEqual([{ path: "data/a.txt", problem: "checksum does not match manifest-sha256.txt" }]);
+  });
+
+  it("runs through the thetafold entry point's command table", async () => {
+    const { out } = await smallBag();
+    const { o, io } = capture();
+    expect(await main(["verify-bundle", out], io)).toBe(0);
+    expect(BagVerifyReportSchema.parse(JSON.parse(o.out)).valid).toBe(true);
+    const help = capture();
+    expect(await main(["verify-bundle", "--help"], help.io)).toBe(0);
+    expect(help.o.out).toContain("Usage: thetafold verify-bundle FILE.zip");
   });
 
   it("exits 2 for a missing file, a file that is not a zip, and bad arguments", async () => {
