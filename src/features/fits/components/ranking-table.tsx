@@ -49,7 +49,7 @@ export function RankingTable({ result, onUse }: { result: RankResult; onUse?: (i
             const thetaD = e.outcome?.parameters.find((p) => p.name === "thetaD");
             return (
               <tr key={`${e.label}-${i}`} className="border-t border-line" data-rank={i + 1}>
-                <td className="px-2 py-1 font-mono">{e.outcome ? i + 1 : "—"}</td>
+                <td className="px-2 py-1 font-mono">{e.outcome?.converged ? i + 1 : "—"}</td>
                 <th scope="row" className="px-2 py-1 text-left font-normal">
                   {e.label}
                 </th>
@@ -88,7 +88,7 @@ export function RankingTable({ result, onUse }: { result: RankResult; onUse?: (i
       </table>
       <p className="mt-1 text-xs text-ink-muted">
         {result.pointsUsed} points, {num(result.window[0], 4)}–{num(result.window[1], 4)} K. Lower BIC is better; a difference above 6 is
-        strong evidence (Kass and Raftery 1995).
+        strong evidence (Kass and Raftery 1995). Candidates that did not converge, or could not be fitted, are listed last and not ranked.
       </p>
     </div>
   );
