@@ -1,3 +1,4 @@
+import { spawnSync } from "node:child_process";
 import { createHash } from "node:crypto";
 import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
@@ -190,6 +191,21 @@ describe("thetafold verify-bundle", () => {
     expect(await main(["verify-bundle", "--help"], help.io)).toBe(0);
     expect(help.o.out).toContain("Usage: thetafold verify-bundle FILE.zip");
   });
+
+  it("gives the same exit codes as a process: `thetafold verify-bundle` 0 for a good bag, 1 for a changed one", async () => {
+    const { out, bytes } = await smallBag();
+    const files = unzipSync(bytes);
+    files["test-bag/data/sub/b.csv"] = strToU8("T_K,cp\n2,0.2\n");
+    const tampered = path.join(dir(), "tampered.zip");
+    writeFileSync(tampered, zipSync(files));
+    const bin = path.resolve("server/cli/thetafold.mjs");
+    const good = spawnSync(process.execPath, [bin, "verify-bundle", out], { encoding: "utf8" });
+    expect(good.status, good.stderr).toBe(0);
+    expect(JSON.parse(good.stdout).valid).toBe(true);
+    const bad = spawnSync(process.execPath, [bin, "verify-bundle", tampered], { encoding: "utf8" });
+    expect(bad.status, bad.stderr).toBe(1);
+    expect(JSON.parse(bad.stdout).failures).toEqual([{ path: "data/sub/b.csv", problem: "checksum does not match manifest-sha256.txt" }]);
+  }, 60_000);
 
   it("exits 2 for a missing file, a file that is not a zip, and bad arguments", async () => {
     const notZip = path.join(dir(), "notes.zip");
