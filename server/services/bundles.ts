@@ -417,7 +417,8 @@ export function assemblePayload(db: Db, plan: BundlePlan, dataDir: string): { fi
   const pad = (i: number, n: number) => String(i + 1).padStart(Math.max(2, String(n).length), "0");
   const sampleById = new Map(plan.samples.map((s) => [s.id, s]));
   const dates: number[] = [];
-  for (const s of plan.samples) dates.push(s.updatedAt, s.createdAt);
+  // Dates of the data only (an edit that changes nothing exported must not change the payload).
+  for (const s of plan.samples) dates.push(s.createdAt);
   for (const r of plan.runs) dates.push(r.createdAt);
   for (const x of plan.fits) dates.push(x.createdAt, x.approvedAt ?? 0);
 
