@@ -450,7 +450,7 @@ function runEngine(
     const s = input.sigma === null ? scatter : input.sigma[i];
     usedPoints.push({ temperatureK: input.temperatureK[i], cp: input.cp[i], sigma: input.sigma === null ? Number.NaN : input.sigma[i] });
     const r = fit.residuals[k];
-    residuals.push({ temperatureK: input.temperatureK[i], cp: input.cp[i], sigma: s, model: input.cp[i] - r, normalized: s > 0 ? r / s : 0 });
+    residuals.push({ temperatureK: input.temperatureK[i], normalized: s > 0 ? r / s : 0 });
   });
   const inWindowIdx = input.idx.filter((_, i) => input.temperatureK[i] >= window[0] && input.temperatureK[i] <= window[1]);
   const maskedInWindow = input.idx.filter((_, i) => input.masked[i] && input.temperatureK[i] >= window[0] && input.temperatureK[i] <= window[1]);
@@ -666,7 +666,7 @@ export function getFit(db: Db, params: FitParams): Fit {
     const m = model.evaluate(values, T);
     const s = input.sigma === null ? scatter : input.sigma[i];
     used.push({ temperatureK: T, cp: input.cp[i], sigma: input.sigma === null ? Number.NaN : input.sigma[i] });
-    residuals.push({ temperatureK: T, cp: input.cp[i], sigma: s, model: m, normalized: s > 0 ? (input.cp[i] - m) / s : 0 });
+    residuals.push({ temperatureK: T, normalized: s > 0 ? (input.cp[i] - m) / s : 0 });
   }
   const warnings = [...summary.warnings];
   if (fitInputSha256(used) !== row.inputSha256) {

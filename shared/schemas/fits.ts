@@ -117,12 +117,9 @@ export const FitParameterSchema = z.object({
 });
 export type FitParameter = z.infer<typeof FitParameterSchema>;
 
-/** One point used by the fit with its model value and normalised residual (Cp − model)/σ. */
+/** One point used by the fit: its temperature and normalised residual (Cp − model)/σ (σ from the scatter for equal weights). */
 export const ResidualPointSchema = z.object({
   temperatureK: z.number(),
-  cp: z.number(),
-  sigma: z.number(),
-  model: z.number(),
   normalized: z.number(),
 });
 export type ResidualPoint = z.infer<typeof ResidualPointSchema>;

@@ -89,7 +89,7 @@ const OUTCOME: FitOutcome = {
   inputSha256: "b".repeat(64),
   rawFileSha256: "a".repeat(64),
   softwareVersion: "0.1.0",
-  residuals: [{ temperatureK: 2, cp: 0.0018, sigma: 0.00002, model: 0.00179, normalized: 0.5 }],
+  residuals: [{ temperatureK: 2, normalized: 0.5 }],
   curve: [{ temperatureK: 2, total: 0.0018, parts: { Electronic: 0.0014, Debye: 0.0004 } }],
   elapsedMs: 3.2,
 };
