@@ -39,8 +39,9 @@ describe.each(["light", "dark"] as const)("%s theme", (theme) => {
 
 test("the Lab page works from the keyboard alone: skip link, section links, invite form", async ({ page, demoPassword }) => {
   await signIn(page, "lead@example.org", demoPassword);
-  await page.reload(); // start from the top of a freshly loaded page
-  await page.getByRole("heading", { level: 1, name: "Samples" }).waitFor();
+  const labPath = new URL(page.url()).pathname.replace(/\/samples$/, "");
+  await page.goto(`${labPath}/no-such-page`); // a freshly loaded page (the lab's not-found page) with nothing focused
+  await page.getByRole("heading", { level: 1, name: "Nothing at this address" }).waitFor();
   await page.keyboard.press("Tab");
   expect(await page.evaluate(() => document.activeElement?.textContent)).toBe("Skip to content");
   await page.keyboard.press("Enter");

@@ -8,12 +8,11 @@ import { Spinner } from "@/components/ui/spinner";
 /** After each navigation, focus moves to the new page's title, so keyboard and screen-reader users start there. */
 function useFocusPageTitle() {
   const location = useLocation();
-  const first = useRef(true);
+  // Starts at the page as loaded: a fresh load (or a remount) leaves focus where the browser puts it.
+  const previousPath = useRef(location.pathname);
   useEffect(() => {
-    if (first.current) {
-      first.current = false;
-      return;
-    }
+    if (previousPath.current === location.pathname) return;
+    previousPath.current = location.pathname;
     const title = document.querySelector<HTMLElement>("[data-page-title]");
     title?.focus({ preventScroll: true });
   }, [location.pathname]);
