@@ -20,7 +20,7 @@ export interface E2eFixtures {
   /** A fresh context (cookies, storage) per test, light colour scheme unless the test opens its own. */
   context: BrowserContext;
   page: Page;
-  /** Console errors and failed requests seen by `page`, for tests that assert a clean page. */
+  /** Console errors and uncaught exceptions seen by `page` (minus the signed-out 401 of GET /api/me), for tests that assert a clean page. */
   pageErrors: string[];
 }
 
@@ -48,7 +48,10 @@ export const test = base.extend<E2eFixtures>({
   page: async ({ context, pageErrors, task }, use) => {
     const page = await context.newPage();
     page.on("console", (message) => {
-      if (message.type() === "error") pageErrors.push(message.text());
+      if (message.type() !== "error") return;
+      // Signed-out pages ask GET /api/me, which answers 401 by contract; chromium logs that as a failed resource.
+      if (/\/api\/me$/.test(message.location().url) && message.text().includes("401")) return;
+      pageErrors.push(message.text());
     });
     page.on("pageerror", (error) => pageErrors.push(error.message));
     await use(page);
