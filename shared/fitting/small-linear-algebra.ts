@@ -101,11 +101,17 @@ export function householderQR(
  * @param n rows (≥ k)
  * @param k columns
  * @param b right-hand side of length n; not modified
- * @returns x, or null when a diagonal entry of R is below 1e-12 of the largest (dependent columns)
+ * @returns x with the residual sum of squares |b − A·x|², or null when a diagonal entry of R is below
+ *   1e-12 of the largest (dependent columns)
  */
-export function leastSquaresSolve(a: ArrayLike<number>, n: number, k: number, b: ArrayLike<number>): number[] | null {
+export function leastSquaresSolve(
+  a: ArrayLike<number>,
+  n: number,
+  k: number,
+  b: ArrayLike<number>,
+): { x: number[]; rss: number } | null {
   if (n < k) return null;
-  const { r, qtb } = householderQR(a, n, k, b);
+  const { r, qtb, rss } = householderQR(a, n, k, b);
   const largest = Math.max(...r.map((row, i) => Math.abs(row[i])));
   if (!(largest > 0)) return null;
   const x = new Array<number>(k);
@@ -115,5 +121,5 @@ export function leastSquaresSolve(a: ArrayLike<number>, n: number, k: number, b:
     for (let j = i + 1; j < k; j++) sum -= r[i][j] * x[j];
     x[i] = sum / r[i][i];
   }
-  return x;
+  return { x, rss: rss! };
 }

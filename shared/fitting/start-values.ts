@@ -15,7 +15,7 @@
  *   i.e. T_peak = Δ/2.3994 ≈ 0.4168·Δ. On a lattice background the anomaly is easier to see as a local
  *   maximum of C/T (m = 1; the background γ + βT² only rises); the gap is also scanned on a log grid.
  * - Amplitudes (γ, β, δ, n_D, n_E, n_S, A), which enter the model linearly, are solved by weighted linear
- *   least squares for every combination of the nonlinear candidates above on a subsample of about 80
+ *   least squares for every combination of the nonlinear candidates above on a subsample of about 48
  *   points; the combinations are returned best first by that χ².
  * - A user's parameters[name].value always replaces the automatic value.
  * Source for the low-temperature expansion and the T³ law: Kittel, Introduction to Solid State Physics,
@@ -181,7 +181,7 @@ export function startValueCandidates(
       const thetaPeak = EINSTEIN_C_OVER_T3_PEAK_X * t[order[best]];
       thetaECandidates.push(thetaPeak, thetaPeak / 2, thetaPeak * 2);
     }
-    thetaECandidates.push(...logGrid(Math.max(2 * tMin, 5), Math.max(5 * tMax, 50), 7));
+    thetaECandidates.push(...logGrid(Math.max(2 * tMin, 5), Math.max(5 * tMax, 50), 6));
   }
 
   const gRatio0 = userValue("gRatio") ?? 1;
@@ -270,7 +270,7 @@ export function startValueCandidates(
   walk(0, base.slice());
   if (combos.length === 0) combos.push(base.slice());
 
-  const step = Math.max(1, Math.floor(n / 80));
+  const step = Math.max(1, Math.floor(n / 48));
   const sample = order.filter((_, r) => r % step === 0);
   const linearFree = names
     .map((name, j) => ({ j, name }))
@@ -319,9 +319,14 @@ export function startValueCandidates(
       const solution = leastSquaresSolve(design, rows, m, target);
       // Columns the subsample cannot separate: keep the heuristic amplitudes.
       if (solution !== null) {
+        let clamped = false;
         linearFree.forEach((j, a) => {
-          values[j] = clampInto(solution[a] / norms[a], j);
+          const v = solution.x[a] / norms[a];
+          values[j] = clampInto(v, j);
+          if (values[j] !== v) clamped = true;
         });
+        // Unclamped, the solve's own residual sum of squares is the screen χ².
+        if (!clamped) return { values, screenChiSquare: Number.isFinite(solution.rss) ? solution.rss : Infinity };
       }
     }
     let chi2 = 0;

@@ -35,24 +35,33 @@ interface Timing {
   medianMs: number;
   minMs: number;
   maxMs: number;
+  /** Median CPU time (user + system) of this process per run: less sensitive than wall time to other load. */
+  cpuMedianMs: number;
 }
 
-/** Median wall time of fn over `repeats` runs after `warmup` unmeasured runs. */
+/** Median wall time (and CPU time) of fn over `repeats` runs after `warmup` unmeasured runs. */
 export function measure(fn: () => unknown, { warmup = 10, repeats = 31 }: { warmup?: number; repeats?: number } = {}): Timing {
   let sink = 0;
   for (let i = 0; i < warmup; i++) sink += Number(Boolean(fn()));
   const times: number[] = [];
+  const cpu: number[] = [];
   for (let i = 0; i < repeats; i++) {
+    const cpuStart = process.cpuUsage();
     const start = performance.now();
     sink += Number(Boolean(fn()));
     times.push(performance.now() - start);
+    const used = process.cpuUsage(cpuStart);
+    cpu.push((used.user + used.system) / 1000);
   }
   if (sink < 0) console.log(sink); // keeps the results alive
   times.sort((a, b) => a - b);
-  return { medianMs: times[Math.floor(times.length / 2)], minMs: times[0], maxMs: times[times.length - 1] };
+  cpu.sort((a, b) => a - b);
+  const mid = Math.floor(times.length / 2);
+  return { medianMs: times[mid], minMs: times[0], maxMs: times[times.length - 1], cpuMedianMs: cpu[mid] };
 }
 
-const spread = (t: Timing) => `min ${t.minMs.toFixed(2)} ms, max ${t.maxMs.toFixed(2)} ms`;
+const spread = (t: Timing) =>
+  `min ${t.minMs.toFixed(2)} ms, max ${t.maxMs.toFixed(2)} ms, CPU-time median ${t.cpuMedianMs.toFixed(2)} ms`;
 
 /** A synthetic run of `def` on a log-spaced grid with relative Gaussian noise. */
 function syntheticRun(def: ModelDefinition, atoms: number, params: number[], points: number, tMinK: number, tMaxK: number, seed: number) {
