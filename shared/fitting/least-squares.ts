@@ -423,9 +423,35 @@ export function fitLeastSquares(
   };
 
   const indices = Float64Array.from({ length: n }, (_, i) => i);
+  // The package evaluates the model twice at the same parameters in every iteration (after its update
+  // for the error, then again at the start of the next step); the values at the last parameter vector
+  // are kept and reused, filled lazily (NaN = not computed yet).
+  let memoU: number[] | null = null;
+  let memoValues = new Float64Array(0);
+  const sameVector = (a: ArrayLike<number>, b: ArrayLike<number>) => {
+    if (a.length !== b.length) return false;
+    for (let j = 0; j < a.length; j++) if (a[j] !== b[j]) return false;
+    return true;
+  };
   const packageModel = (u: number[]) => {
+    if (memoU !== null && sameVector(memoU, u)) {
+      const cached = memoValues;
+      const full = toFull(u.map((v, j) => v / scale[j]));
+      return (i: number) => {
+        let v = cached[i];
+        if (Number.isNaN(v)) cached[i] = v = model(full, x[i]) * invSigma[i];
+        return v;
+      };
+    }
     const full = toFull(u.map((v, j) => v / scale[j]));
-    return (i: number) => model(full, x[i]) * invSigma[i];
+    const values = new Float64Array(n).fill(NaN);
+    memoU = u.slice();
+    memoValues = values;
+    return (i: number) => {
+      let v = values[i];
+      if (Number.isNaN(v)) values[i] = v = model(full, x[i]) * invSigma[i];
+      return v;
+    };
   };
   const packageJacobian = (u: number[]) => {
     const full = toFull(u.map((v, j) => v / scale[j]));
@@ -459,8 +485,18 @@ export function fitLeastSquares(
     // 1. A short run of the package from the current best point.
     const budget = Math.min(burst, maxIterations - iterations);
     burst = Math.min(burst * 2, 32);
+    const u0 = q.map((v, j) => v * scale[j]);
+    if (lastTrial !== null && lastTrial.q === q) {
+      // The model values at the start are known from our last χ² evaluation there: f̃ = ỹ − r.
+      // (Only when u → q round-trips exactly, as the package will divide u by the scale again.)
+      if (sameVector(u0.map((v, j) => v / scale[j]), q)) {
+        const known = lastTrial.r;
+        memoU = u0.slice();
+        memoValues = Float64Array.from(yWhite, (yw, i) => yw - known[i]);
+      }
+    }
     const run = levenbergMarquardt({ x: indices, y: yWhite }, packageModel, {
-      initialValues: q.map((v, j) => v * scale[j]),
+      initialValues: u0,
       minValues: lo.map((v, j) => v * scale[j]),
       maxValues: hi.map((v, j) => v * scale[j]),
       maxIterations: budget,
@@ -474,6 +510,13 @@ export function fitLeastSquares(
     if (candidate.every(Number.isFinite) && run.parameterError < chi2) {
       q = candidate;
       chi2 = run.parameterError;
+      // If the package's best point is the last one it evaluated, its residuals are known too.
+      if (memoU !== null && sameVector(memoU, run.parameterValues) && sameVector(memoU.map((v, j) => v / scale[j]), q)) {
+        const values = memoValues;
+        if (!values.some(Number.isNaN)) {
+          lastTrial = { q, r: Float64Array.from(yWhite, (yw, i) => yw - values[i]), chi2 };
+        }
+      }
     }
 
     // 2. Our own steps: the undamped Gauss–Newton prediction decides convergence; Marquardt-damped
