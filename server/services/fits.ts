@@ -245,6 +245,7 @@ function mapSummary(row: FitRow, params: FitParameterRow[], who: Map<string, Per
     approvedAt: iso(row.approvedAt),
     supersededBy: row.supersededBy,
     supersededAt: iso(row.supersededAt),
+    maskedPointIndices: result.maskedIdx,
   };
 }
 

@@ -186,6 +186,8 @@ export const FitSchema = FitOutcomeSchema.extend({
   approvedAt: z.string().nullable(),
   supersededBy: z.string().nullable(),
   supersededAt: z.string().nullable(),
+  /** Indices of the run's points inside the window that were masked when the fit ran (left out); the mask may change later, this does not. */
+  maskedPointIndices: z.array(z.number().int()),
 });
 export type Fit = z.infer<typeof FitSchema>;
 

@@ -76,6 +76,7 @@ describe("POST …/fits (fit and save a draft)", () => {
     expect(fit.reducedChiSquare).toBeLessThan(1.5);
     expect(fit.pointsUsed).toBe(118);
     expect(fit.maskedExcluded).toBe(2);
+    expect(fit.maskedPointIndices).toEqual([5, 60]);
     expect(fit.dof).toBe(115);
     expect(fit.freeParameters).toEqual(["gamma", "thetaD", "nD"]);
     expect(fit.covariance).toHaveLength(3);

@@ -108,6 +108,7 @@ const storedFit = (over: Partial<Fit> = {}): Fit => ({
   approvedAt: null,
   supersededBy: null,
   supersededAt: null,
+  maskedPointIndices: [3],
   ...over,
 });
 const summary = (f: Fit) => {
