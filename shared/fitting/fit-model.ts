@@ -130,6 +130,10 @@ export function fitHeatCapacity(data: HeatCapacityData, def: ModelDefinition, op
     const v = settings[s.name]?.value;
     if (fixed[j] && v === undefined) throw new RangeError(`parameter ${s.name} is fixed but has no value`);
     if (v !== undefined && !Number.isFinite(v)) throw new RangeError(`parameter ${s.name}: value must be a finite number (got ${String(v)})`);
+    if (!(lower[j] <= upper[j])) throw new RangeError(`parameter ${s.name}: lower bound ${lower[j]} is above upper bound ${upper[j]}`);
+    if (!fixed[j] && v !== undefined && (v < lower[j] || v > upper[j])) {
+      throw new RangeError(`parameter ${s.name}: start value ${v} lies outside its bounds [${lower[j]}, ${upper[j]}]`);
+    }
   });
 
   const [wLo, wHi] = opts.windowK ?? [-Infinity, Infinity];

@@ -125,6 +125,9 @@ describe("fitHeatCapacity: window, mask and user settings", () => {
       /nD is fixed but has no value/,
     );
     expect(() => fitHeatCapacity(run, debyeDef, { atomsPerFormulaUnit: 2, windowK: [300, 2] })).toThrow(/opts\.windowK/);
+    expect(() =>
+      fitHeatCapacity(run, { ...debyeDef, parameters: { thetaD: { value: 500, upper: 400 } } }, { atomsPerFormulaUnit: 2 }),
+    ).toThrow(/thetaD: start value 500 lies outside its bounds/);
     expect(() => fitHeatCapacity({ ...run, sigma: run.sigma.slice(1) }, debyeDef, { atomsPerFormulaUnit: 2 })).toThrow(
       /data\.sigma must have length 120/,
     );
