@@ -138,3 +138,16 @@ export function parseNumberField(text: string): number | undefined {
   if (t === "") return undefined;
   return Number(t);
 }
+
+/** Ticks at 1, 2, 5 × 10ⁿ between lo and hi (K), for a logarithmic temperature axis. */
+export function logTicks(lo: number, hi: number): number[] {
+  if (!(lo > 0) || !(hi > lo)) return [];
+  const out: number[] = [];
+  for (let e = Math.floor(Math.log10(lo)); e <= Math.ceil(Math.log10(hi)); e++) {
+    for (const m of [1, 2, 5]) {
+      const t = Number((m * 10 ** e).toPrecision(3));
+      if (t >= lo && t <= hi) out.push(t);
+    }
+  }
+  return out;
+}

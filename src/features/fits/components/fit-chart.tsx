@@ -16,7 +16,7 @@ import {
   useXAxisScale,
 } from "recharts";
 import type { CurvePoint } from "@shared/schemas/fits";
-import { decimateForDisplay } from "../utils";
+import { decimateForDisplay, logTicks } from "../utils";
 
 /** R in J/(mol·K), CODATA 2018 (exact from k_B and N_A); only for the C/(3nR) display scale. */
 const R_DISPLAY = 8.314462618;
@@ -222,6 +222,7 @@ export function FitChart({ points, view, atomsPerFormulaUnit: n, window, onWindo
             dataKey="x"
             domain={xDomain}
             scale={useLog ? "log" : "linear"}
+            ticks={useLog ? logTicks(xDomain[0], xDomain[1]) : undefined}
             allowDataOverflow
             tickFormatter={fmt}
             label={{ value: xLabel, position: "insideBottom", offset: -4, fill: "var(--color-ink-muted)", fontSize: 12 }}

@@ -1,6 +1,6 @@
 import { CartesianGrid, ReferenceLine, ResponsiveContainer, Scatter, ScatterChart, Tooltip, XAxis, YAxis } from "recharts";
 import type { ResidualPoint } from "@shared/schemas/fits";
-import { decimateForDisplay } from "../utils";
+import { decimateForDisplay, logTicks } from "../utils";
 
 const fmt = (v: number) => String(Number(v.toPrecision(3)));
 
@@ -16,6 +16,8 @@ export function ResidualPlot({ residuals, logT, height = 160 }: { residuals: rea
   const extreme = Math.max(3.5, ...shown.map((r) => Math.abs(r.normalized)));
   const limit = Math.ceil(Math.min(extreme, 50));
   const outside = residuals.filter((r) => Math.abs(r.normalized) > 2).length;
+  const tLo = Math.min(...shown.map((r) => r.temperatureK));
+  const tHi = Math.max(...shown.map((r) => r.temperatureK));
   return (
     <figure className="space-y-1">
       <div style={{ height }} className="w-full" data-testid="residual-plot">
@@ -26,7 +28,8 @@ export function ResidualPlot({ residuals, logT, height = 160 }: { residuals: rea
               type="number"
               dataKey="x"
               scale={logT ? "log" : "linear"}
-              domain={["auto", "auto"]}
+              domain={logT ? [tLo * 0.95, tHi * 1.05] : ["auto", "auto"]}
+              ticks={logT ? logTicks(tLo * 0.95, tHi * 1.05) : undefined}
               tickFormatter={fmt}
               height={32}
               stroke="var(--color-line-strong)"

@@ -1,7 +1,7 @@
 import { CartesianGrid, ReferenceArea, ReferenceLine, ResponsiveContainer, Scatter, ScatterChart, Tooltip, XAxis, YAxis } from "recharts";
 import type { ThetaDCurve } from "@shared/schemas/fits";
 import { MeasuredValue } from "@/components/ui/measured-value";
-import { decimateForDisplay } from "../utils";
+import { decimateForDisplay, logTicks } from "../utils";
 
 const fmt = (v: number) => String(Number(v.toPrecision(4)));
 
@@ -20,6 +20,9 @@ export function ThetaDView({ curve, logT }: { curve: ThetaDCurve; logT?: boolean
   const pad = Number.isFinite(lo) && Number.isFinite(hi) ? Math.max(1, (hi - lo) * 0.12) : 10;
   const floor = Number.isFinite(lo) ? Math.max(0, lo - 2 * pad) : 0;
   const strip = unsolved.map((p) => ({ x: p.temperatureK, y: floor + pad * 0.4 }));
+  const xs = curve.points.filter((p) => !p.masked).map((p) => p.temperatureK);
+  const tLo = Math.min(...xs) * 0.95;
+  const tHi = Math.max(...xs) * 1.05;
   return (
     <figure className="space-y-2">
       <div className="h-72 w-full" data-testid="theta-d-chart">
@@ -30,7 +33,8 @@ export function ThetaDView({ curve, logT }: { curve: ThetaDCurve; logT?: boolean
               type="number"
               dataKey="x"
               scale={logT ? "log" : "linear"}
-              domain={["auto", "auto"]}
+              domain={logT ? [tLo, tHi] : ["auto", "auto"]}
+              ticks={logT ? logTicks(tLo, tHi) : undefined}
               tickFormatter={fmt}
               height={36}
               stroke="var(--color-line-strong)"
