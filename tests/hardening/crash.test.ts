@@ -17,7 +17,7 @@ import { consistency, CONSISTENT, prepareInstall, signIn, type PreparedInstall }
  */
 
 const REPO = path.resolve(import.meta.dirname, "../..");
-const CYCLES = 20;
+const CYCLES = Number(process.env.CRASH_CYCLES ?? 20);
 
 interface Child {
   proc: ChildProcess;
@@ -95,18 +95,21 @@ describe("SIGKILL during uploads and fit saves, 20 times", () => {
     const acknowledgedRuns = new Map<string, number>([[first.body.runs[0].id, first.body.runs[0].pointCount]]);
     const acknowledgedFits = new Map<string, number>();
     let orphansSeen = 0;
+    const fitAnswers: number[] = [];
     let killedMidCommit = 0;
 
     for (let cycle = 0; cycle < CYCLES; cycle++) {
       const runIds = [...acknowledgedRuns.keys()];
-      const inFlight: Promise<void>[] = [];
       let answered = 0;
-      // A burst: uploads of 30 to 3,000 points (the big ones keep a commit open longer) and fit saves.
+      // A burst in a seeded order: uploads of 30 to 3,000 points (the big ones keep a commit open
+      // longer) and fit saves of runs stored earlier.
+      const burst: (() => Promise<void>)[] = [];
       for (let i = 0; i < 6; i++) {
         const who = i % 2 === 0 ? lead : researcher;
         const points = i % 3 === 0 ? 3000 : 30 + Math.floor(rand.uniform() * 200);
-        inFlight.push(
-          who.upload(runsUrl, syntheticExport(points, 10, `c${cycle}`), `c${cycle}-${i}.csv`, { mapping: SYNTHETIC_MAPPING }).then(
+        const bytes = syntheticExport(points, 10, `c${cycle}`);
+        burst.push(() =>
+          who.upload(runsUrl, bytes, `c${cycle}-${i}.csv`, { mapping: SYNTHETIC_MAPPING }).then(
             (res) => {
               answered++;
               if (res.status === 201) for (const r of res.body.runs) acknowledgedRuns.set(r.id, r.pointCount);
@@ -119,10 +122,11 @@ describe("SIGKILL during uploads and fit saves, 20 times", () => {
       for (let i = 0; i < 4; i++) {
         const runId = runIds[Math.floor(rand.uniform() * runIds.length)];
         const who = i % 2 === 0 ? researcher : lead;
-        inFlight.push(
+        burst.push(() =>
           who.json("POST", `${labBase}/runs/${runId}/fits`, { model: LOW_T_MODEL, window: LOW_T_WINDOW }).then(
             (res) => {
               answered++;
+              fitAnswers.push(res.status);
               if (res.status === 201) acknowledgedFits.set(res.body.id, res.body.parameters.length);
               else expect(res.status, JSON.stringify(res.body)).toBeLessThan(500);
             },
@@ -130,9 +134,14 @@ describe("SIGKILL during uploads and fit saves, 20 times", () => {
           ),
         );
       }
-      // Kill once 0 to 5 of the 10 requests have been answered (seeded), plus 0–40 ms: late enough that
+      for (let i = burst.length - 1; i > 0; i--) {
+        const j = Math.floor(rand.uniform() * (i + 1));
+        [burst[i], burst[j]] = [burst[j], burst[i]];
+      }
+      const inFlight = burst.map((send) => send());
+      // Kill once 0 to 8 of the 10 requests have been answered (seeded), plus 0–40 ms: late enough that
       // some writes are acknowledged, early enough that others are mid-commit, whatever the machine's speed.
-      const answersBeforeKill = Math.floor(rand.uniform() * 6);
+      const answersBeforeKill = Math.floor(rand.uniform() * 9);
       const extraMs = Math.floor(rand.uniform() * 40);
       const deadline = Date.now() + 60_000;
       while (answered < answersBeforeKill && Date.now() < deadline) await new Promise((r) => setTimeout(r, 5));
@@ -181,7 +190,7 @@ describe("SIGKILL during uploads and fit saves, 20 times", () => {
     // Not a pass condition (kills are timed by a seeded generator), but say how often a kill caught a commit.
     console.log(
       `crash test: ${CYCLES} kills, ${acknowledgedRuns.size} runs and ${acknowledgedFits.size} fits acknowledged and kept; ` +
-        `${killedMidCommit} kills left a file behind (${orphansSeen} orphans), each swept at the next start`,
+        `${killedMidCommit} kills left a file behind (${orphansSeen} orphans), each swept at the next start; fit answers before kills by status: ${JSON.stringify(Object.fromEntries([...new Set(fitAnswers)].map((k) => [k, fitAnswers.filter((x) => x === k).length])))}`,
     );
     expect(acknowledgedRuns.size + acknowledgedFits.size).toBeGreaterThan(CYCLES);
   }, 900_000);
