@@ -10,7 +10,7 @@
  * Error Analysis, 3rd ed., ch. 6–7.
  */
 import { Matrix, SingularValueDecomposition } from "ml-matrix";
-import { GAS_CONSTANT } from "@shared/physics/constants";
+import { thetaDFromBeta as thetaDValueFromBeta } from "@shared/physics/theta-d";
 import { householderQR } from "@shared/fitting/small-linear-algebra";
 
 export interface LinearFitResult {
@@ -254,6 +254,6 @@ export function thetaDFromBeta(
   if (sigmaBeta !== null && !(Number.isFinite(sigmaBeta) && sigmaBeta >= 0)) {
     throw new RangeError(`sigmaBeta must be a finite uncertainty ≥ 0 (got ${String(sigmaBeta)})`);
   }
-  const thetaD = Math.cbrt((12 * Math.PI ** 4 * atomsN * GAS_CONSTANT) / (5 * beta));
+  const thetaD = thetaDValueFromBeta(beta, atomsN);
   return { thetaD, sigmaThetaD: sigmaBeta === null ? null : (thetaD * sigmaBeta) / (3 * beta) };
 }
