@@ -634,6 +634,7 @@ function fitJson(x: FitRow, params: ParamRow[], run: RunRow, paths: { raw: strin
     sample: sample ? { id: sample.id, label: sample.label, formula: sample.formula, batch: sample.batchCode } : null,
     pointsUsed: x.pointsUsed,
     maskedExcluded: x.maskedExcluded,
+    maskedPointIndices: Array.isArray(result.maskedIdx) ? result.maskedIdx : [],
     weighting: typeof result.weighting === "string" ? result.weighting : null,
     parameters: ordered.map((p) => ({
       name: p.name,
@@ -1020,6 +1021,10 @@ ending in LF ("\\n"):
     <T>,<Cp>,<sigma>            one line per point used, in table order
 with each number in exponent form with 17 significant digits, as JavaScript's x.toExponential(16)
 (e.g. 2.9814999999999998e+2). In Python: m, e = f"{x:.16e}".split("e"); f"{m}e{int(e):+d}".
+The sigma field is empty when the fit used equal weights (a run without uncertainties). When only
+some points of the window had a sigma, the others were given the median relative sigma of those that
+had one; the sigma written is the one the fit used. Points masked at fit time are listed in the fit
+JSON (maskedPointIndices) and are not in the text.
 
 
 7. Safety and use
