@@ -1,6 +1,6 @@
 import { spawn, type ChildProcess } from "node:child_process";
 import { createHash } from "node:crypto";
-import { existsSync, readdirSync } from "node:fs";
+import { existsSync, readdirSync, rmSync } from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { readEnv } from "../../server/env";
@@ -46,6 +46,7 @@ afterAll(async () => {
   console.error = realConsoleError;
   locker?.kill("SIGKILL");
   await server?.close();
+  if (install) rmSync(path.dirname(install.dataDir), { recursive: true, force: true });
 });
 
 /** A second process that takes the write lock on the database for ~20 ms every ~30 ms until killed. */

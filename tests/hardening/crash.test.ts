@@ -1,5 +1,5 @@
 import { spawn, type ChildProcess } from "node:child_process";
-import { existsSync, readdirSync } from "node:fs";
+import { existsSync, readdirSync, rmSync } from "node:fs";
 import path from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { openDb } from "../../server/db/client";
@@ -187,6 +187,7 @@ describe("SIGKILL during uploads and fit saves, 20 times", () => {
       expect(detail.body.points).toHaveLength(acknowledgedRuns.get(someRun)!);
     }
     await killHard(child.proc);
+    rmSync(path.dirname(install.dataDir), { recursive: true, force: true });
     // Not a pass condition (kills are timed by a seeded generator), but say how often a kill caught a commit.
     console.log(
       `crash test: ${CYCLES} kills, ${acknowledgedRuns.size} runs and ${acknowledgedFits.size} fits acknowledged and kept; ` +

@@ -1,6 +1,6 @@
 import http from "node:http";
 import type { AddressInfo } from "node:net";
-import { existsSync, mkdirSync, mkdtempSync, readdirSync } from "node:fs";
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { count } from "drizzle-orm";
@@ -52,6 +52,8 @@ beforeAll(async () => {
 afterAll(async () => {
   server.closeAllConnections();
   await new Promise((r) => server.close(r));
+  t.db.$client.close();
+  rmSync(path.dirname(dataDir), { recursive: true, force: true });
 });
 
 async function api(method: string, url: string, json?: unknown): Promise<{ status: number; body: any }> {
