@@ -33,6 +33,11 @@ function joinParts(text: string, original: string): string {
     .join("");
 }
 
+/** Largest atoms per formula unit a formula or override may give (large unit cells stay far below). */
+export const MAX_ATOMS_PER_FORMULA_UNIT = 1e4;
+/** Largest molar mass per formula unit, g/mol. */
+export const MAX_MOLAR_MASS_G_PER_MOL = 1e6;
+
 /**
  * Parses a formula such as "Cu", "Al2O3", "Ba8Ga16Ge30", "(Ba0.9Sr0.1)8Ga16Ge30", "CuSO4·5H2O".
  * Hydrate parts are joined with "·" or "*" ("CuSO4.5H2O" reads 4.5 as a number). Unicode subscript
@@ -41,7 +46,8 @@ function joinParts(text: string, original: string): string {
  * @returns molar mass (g/mol), atoms per formula unit and the element counts
  * @throws IngestError (INVALID_FORMULA) for an empty formula, an unknown element, lower-case or other
  *   characters a formula does not have, charges, zero or negative counts, or an element without a
- *   standard atomic weight (e.g. Tc: give the molar mass by hand)
+ *   standard atomic weight (e.g. Tc: give the molar mass by hand), or more than MAX_ATOMS_PER_FORMULA_UNIT atoms
+ *   or MAX_MOLAR_MASS_G_PER_MOL per formula unit
  */
 export function parseFormula(formula: string): FormulaInfo {
   const text = formula.trim().replace(/[\u2080-\u2089]/g, (d) => String(SUBSCRIPTS.indexOf(d)));
@@ -89,5 +95,12 @@ export function parseFormula(formula: string): FormulaInfo {
     atoms += count;
   }
   if (atoms === 0 || !(info.mass > 0)) throw new IngestError("INVALID_FORMULA", `'${formula}' contains no elements`);
+  // The same ceilings as a hand-entered override (shared/schemas/samples.ts): beyond them the formula is a typo.
+  if (atoms > MAX_ATOMS_PER_FORMULA_UNIT || info.mass > MAX_MOLAR_MASS_G_PER_MOL) {
+    throw new IngestError(
+      "INVALID_FORMULA",
+      `'${formula}': ${atoms} atoms and ${info.mass.toPrecision(4)} g/mol per formula unit is beyond any crystal's formula unit (at most ${MAX_ATOMS_PER_FORMULA_UNIT} atoms, ${MAX_MOLAR_MASS_G_PER_MOL} g/mol)`,
+    );
+  }
   return { molarMassGPerMol: info.mass, atomsPerFormulaUnit: atoms, elements };
 }

@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { LabParams } from "./labs";
 import { RunSummarySchema } from "./runs";
-import { parseFormula } from "@shared/ingest/formula";
+import { parseFormula, MAX_ATOMS_PER_FORMULA_UNIT, MAX_MOLAR_MASS_G_PER_MOL } from "@shared/ingest/formula";
 
 /*
  * Batches and samples: request and response shapes. Masses are in mg (as weighed), molar mass in
@@ -107,9 +107,9 @@ const sampleFields = {
   batchId: z.string().min(1).max(64).nullable().optional(),
   formula: trimmed("a formula", 120),
   /** Set to override the molar mass from the formula (needs a reason); null clears the override. */
-  molarMassGPerMol: finiteNumber("Molar mass").positive("Molar mass must be above 0").max(1e6).nullable().optional(),
+  molarMassGPerMol: finiteNumber("Molar mass").positive("Molar mass must be above 0").max(MAX_MOLAR_MASS_G_PER_MOL).nullable().optional(),
   molarMassOverrideReason: optionalText(500).nullable().optional(),
-  atomsPerFormulaUnit: finiteNumber("Atoms per formula unit").positive("Atoms per formula unit must be above 0").max(1e4).nullable().optional(),
+  atomsPerFormulaUnit: finiteNumber("Atoms per formula unit").positive("Atoms per formula unit must be above 0").max(MAX_ATOMS_PER_FORMULA_UNIT).nullable().optional(),
   atomsOverrideReason: optionalText(500).nullable().optional(),
   massMg: finiteNumber("Mass").positive("The mass must be above 0 mg").max(1e6, "The mass must be at most 1 kg"),
   massSigmaMg: finiteNumber("Mass uncertainty").min(0, "The mass uncertainty cannot be negative").max(1e6).optional(),

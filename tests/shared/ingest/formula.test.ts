@@ -79,6 +79,8 @@ describe("parseFormula (mf-parser 3.9.3)", () => {
     ["Tc", "an element without a standard atomic weight"],
     ["Cu;", "a stray character"],
     ["[13C]", "isotope brackets"],
+    ["Cu99999999999999999999999", "an absurd count (10^23 atoms per formula unit)"],
+    ["U20000", "more atoms than any formula unit (above MAX_ATOMS_PER_FORMULA_UNIT)"],
   ])("refuses %j (%s) with an IngestError, not a crash", (formula) => {
     let error: unknown;
     try {
