@@ -9,6 +9,8 @@ export type IngestErrorCode =
   | "NO_NUMERIC_ROWS"
   | "NO_DATA_ROWS"
   | "TOO_FEW_COLUMNS"
+  | "TOO_MANY_COLUMNS"
+  | "LINE_TOO_LONG"
   | "RAGGED_ROW"
   | "NOT_A_NUMBER"
   | "NOT_FINITE"

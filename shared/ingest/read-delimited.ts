@@ -144,6 +144,34 @@ function isUnitsRow(cells: readonly string[]): boolean {
   return units > 0;
 }
 
+/** More columns than any calorimeter export has: refused before the delimiter analysis, whose cost grows with them. */
+export const MAX_COLUMNS = 1000;
+/** Longest line read, in characters (a row of 1,000 numbers fits comfortably). */
+export const MAX_LINE_CHARS = 65_536;
+
+// One cheap pass per line before the per-delimiter analysis, so a hostile file (a million columns,
+// a single 20 MB line) is refused in linear time instead of being analysed four times.
+function checkLineSizes(lines: readonly string[]): void {
+  for (let i = 0; i < lines.length; i++) {
+    const line = lines[i];
+    if (line.length > MAX_LINE_CHARS) {
+      throw new IngestError("LINE_TOO_LONG", `the line is ${line.length} characters long; lines of more than ${MAX_LINE_CHARS} are not read`, i + 1);
+    }
+    let commas = 0;
+    let semicolons = 0;
+    let tabs = 0;
+    for (let k = 0; k < line.length; k++) {
+      const c = line.charCodeAt(k);
+      if (c === 0x2c) commas++;
+      else if (c === 0x3b) semicolons++;
+      else if (c === 0x09) tabs++;
+    }
+    if (Math.max(commas, semicolons, tabs) >= MAX_COLUMNS) {
+      throw new IngestError("TOO_MANY_COLUMNS", `the line has more than ${MAX_COLUMNS} columns; a heat-capacity export has a handful`, i + 1);
+    }
+  }
+}
+
 function checkNotBinary(text: string): void {
   const nul = text.indexOf("\u0000");
   if (nul >= 0) {
@@ -188,6 +216,7 @@ export function readDelimited(text: string): DelimitedTable {
   if (body.trim().length === 0) throw new IngestError("EMPTY_FILE", "the file is empty");
   checkNotBinary(body);
   const lines = body.split(/\r\n|\n|\r/);
+  checkLineSizes(lines);
   const nonBlank: number[] = [];
   for (let i = 0; i < lines.length; i++) if (lines[i].trim() !== "") nonBlank.push(i);
 

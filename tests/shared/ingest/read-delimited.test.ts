@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { IngestError } from "@shared/ingest/ingest-error";
-import { decodeBytes, findSampleMassMg, readDelimited, summarizeTable } from "@shared/ingest/read-delimited";
+import { decodeBytes, findSampleMassMg, MAX_LINE_CHARS, readDelimited, summarizeTable } from "@shared/ingest/read-delimited";
 import { fixtureText } from "./fixture-files";
 
 /** Runs fn and returns the IngestError it throws (fails the test if it throws anything else or nothing). */
@@ -226,5 +226,45 @@ describe("readDelimited: every refusal is an IngestError naming line and column"
     const e = refusal(() => readDelimited("T (K);C (J/K)\n1,5;2,5\n2,5;3.5\n3,5;4,5\n"));
     expect(e.code).toBe("NOT_A_NUMBER");
     expect([e.line, e.column]).toEqual([3, "C (J/K)"]);
+  });
+});
+
+describe("readDelimited size limits (hostile files are refused in one linear pass)", () => {
+  it("refuses a line with a million columns, naming its line", () => {
+    const text = "# synthetic\nT,Cp\n" + Array.from({ length: 1_000_000 }, () => "1").join(",") + "\n";
+    let error: unknown;
+    try {
+      readDelimited(text);
+    } catch (e) {
+      error = e;
+    }
+    expect(error).toBeInstanceOf(IngestError);
+    // 2 MB on one line: the length check answers first.
+    expect(["LINE_TOO_LONG", "TOO_MANY_COLUMNS"]).toContain((error as IngestError).code);
+    expect((error as IngestError).line).toBe(3);
+  });
+
+  it("refuses a line of 5,000 short columns as too many columns", () => {
+    const text = "T,Cp\n" + Array.from({ length: 5000 }, () => "1").join(";") + "\n";
+    expect(() => readDelimited(text)).toThrowError(IngestError);
+    try {
+      readDelimited(text);
+    } catch (e) {
+      expect((e as IngestError).code).toBe("TOO_MANY_COLUMNS");
+      expect((e as IngestError).line).toBe(2);
+    }
+  });
+
+  it("refuses a single line longer than MAX_LINE_CHARS", () => {
+    const text = "T,Cp\n2," + "1".repeat(MAX_LINE_CHARS) + "\n";
+    expect(() => readDelimited(text)).toThrowError(/not read/);
+  });
+
+  it("still reads a 20-column export", () => {
+    const header = Array.from({ length: 20 }, (_, i) => `c${i}`).join(",");
+    const row = (t: number) => Array.from({ length: 20 }, (_, i) => String(i === 0 ? t : i)).join(",");
+    const table = readDelimited([header, row(2), row(3), row(4)].join("\n"));
+    expect(table.header).toHaveLength(20);
+    expect(table.rows).toHaveLength(3);
   });
 });
