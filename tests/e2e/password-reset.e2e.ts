@@ -8,6 +8,9 @@ test("a researcher resets a forgotten password through the e-mailed link, then c
   // Ask for the link, signed out.
   await page.goto("/sign-in");
   await page.getByRole("link", { name: "Forgot your password?" }).click();
+  // The sign-in form has an "E-mail address" field too: wait for the new page before typing.
+  await page.waitForURL(/\/forgot-password$/);
+  await page.getByRole("heading", { name: "Choose a new password" }).waitFor();
   await page.getByLabel("E-mail address").fill(account);
   await page.getByRole("button", { name: "Send the link" }).click();
   await page.getByText("Check your inbox").waitFor();
