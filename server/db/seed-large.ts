@@ -1,6 +1,7 @@
 import { createHash, randomUUID } from "node:crypto";
 import { existsSync, mkdirSync, writeFileSync } from "node:fs";
 import path from "node:path";
+import { createSeededRandom } from "@shared/numerics/seeded-random";
 import type { Role } from "@shared/schemas/auth";
 import { storedFilePath } from "../services/files";
 import type { Db } from "./client";
@@ -27,18 +28,6 @@ const MOLAR_MASS = 4393.01;
 const ATOMS = 54;
 const SOFTWARE_VERSION = "seed-large";
 
-/** mulberry32 (T. Ettinger, public domain): the seed is the same on every install. */
-function seeded(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
 /** What seedLarge made. */
 export interface LargeSeedResult {
   labId: string;
@@ -49,7 +38,6 @@ export interface LargeSeedResult {
   approvedFits: number;
   elapsedMs: number;
 }
-
 /**
  * Adds the scale-test lab (see the header) with the given people as members.
  * @param db the database (migrated)
@@ -65,7 +53,7 @@ export function seedLarge(
   options: { seed?: number; labName?: string } = {},
 ): LargeSeedResult {
   const started = performance.now();
-  const random = seeded(options.seed ?? 20261201);
+  const random = createSeededRandom(options.seed ?? 20261201).uniform;
   const gauss = () => Math.sqrt(-2 * Math.log(Math.max(random(), 1e-300))) * Math.cos(2 * Math.PI * random());
   const now = Date.now();
   const labId = randomUUID();

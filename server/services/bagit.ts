@@ -5,6 +5,7 @@ import { pipeline } from "node:stream/promises";
 import { ZipArchive } from "archiver";
 import { unzipSync } from "fflate";
 import type { BagVerifyReport, BagFailure } from "@shared/schemas/bundles";
+import { humanSize } from "@shared/format/byte-size";
 
 /*
  * BagIt 1.0 (RFC 8493, https://www.rfc-editor.org/rfc/rfc8493) bags serialised as zip.
@@ -74,20 +75,6 @@ export function payloadOxum(entries: readonly { bytes: number }[]): string {
   return `${entries.reduce((a, e) => a + e.bytes, 0)}.${entries.length}`;
 }
 
-/**
- * A size as people read it, in SI units ("12.3 kB", "4.0 MB"), for Bag-Size.
- * @param bytes octets
- */
-export function humanSize(bytes: number): string {
-  const units = ["B", "kB", "MB", "GB", "TB"];
-  let v = bytes;
-  let i = 0;
-  while (v >= 1000 && i < units.length - 1) {
-    v /= 1000;
-    i += 1;
-  }
-  return i === 0 ? `${bytes} B` : `${v.toFixed(1)} ${units[i]}`;
-}
 
 /**
  * bag-info.txt from label–value pairs in the given order (RFC 8493 §2.2.2). Line breaks inside a value

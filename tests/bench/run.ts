@@ -11,7 +11,7 @@ import { buildComposite } from "@shared/physics/composite";
 import type { ModelDefinition } from "@shared/physics/model-types";
 import { fitHeatCapacity } from "@shared/fitting/fit-model";
 import { fitLeastSquares } from "@shared/fitting/least-squares";
-import { createSeededRandom } from "../helpers/seeded-random";
+import { createSeededRandom } from "@shared/numerics/seeded-random";
 import { scaleSection } from "./scale";
 
 export interface BenchLine {

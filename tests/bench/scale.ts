@@ -7,6 +7,7 @@
  * starts a real server and awaits HTTP, while run.ts's sections are synchronous; the child prints one
  * JSON line of BenchLine[] at the end.
  */
+import { createSeededRandom } from "@shared/numerics/seeded-random";
 import { spawnSync } from "node:child_process";
 import { mkdirSync, mkdtempSync, rmSync } from "node:fs";
 import http from "node:http";
@@ -110,14 +111,7 @@ async function compareFigures(): Promise<BenchLine[]> {
 
 /** A synthetic 100,000-row export: T (K), total C (J/K), σ (J/K), field (T) in three fields; seeded. */
 function bigExport(rows: number): Uint8Array {
-  let a = 12345;
-  const rand = () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  const rand = createSeededRandom(12345).uniform;
   const moles = 10e-3 / 63.546;
   const lines = ["# SYNTHETIC DATA: invented for the Thetafold bench", "Temperature (K),Heat capacity (J/K),Uncertainty (J/K),Field (T)"];
   for (let i = 0; i < rows; i++) {

@@ -3,7 +3,7 @@ import { existsSync, readdirSync, rmSync } from "node:fs";
 import path from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { openDb } from "../../server/db/client";
-import { createSeededRandom } from "../helpers/seeded-random";
+import { createSeededRandom } from "@shared/numerics/seeded-random";
 import { LOW_T_MODEL, LOW_T_WINDOW, SYNTHETIC_MAPPING, syntheticExport } from "./lab-world";
 import { consistency, CONSISTENT, prepareInstall, signIn, type PreparedInstall } from "./server-harness";
 

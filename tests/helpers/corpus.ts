@@ -1,4 +1,4 @@
-import { createSeededRandom, type SeededRandom } from "./seeded-random";
+import { createSeededRandom, type SeededRandom } from "@shared/numerics/seeded-random";
 
 /*
  * A seeded generator of malformed and hostile run uploads (and of formulas that are not formulas, for

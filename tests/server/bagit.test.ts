@@ -7,13 +7,13 @@ import { strFromU8, strToU8, unzipSync, zipSync } from "fflate";
 import { describe, expect, it } from "vitest";
 import { BagVerifyReportSchema } from "@shared/schemas/bundles";
 import { main } from "../../server/cli/main";
+import { humanSize } from "@shared/format/byte-size";
 import { verifyBundleCommand } from "../../server/cli/verify-bundle";
 import {
   BAGIT_TXT,
   bagInfoText,
   decodeManifestPath,
   encodeManifestPath,
-  humanSize,
   manifestText,
   NotAZipError,
   payloadOxum,

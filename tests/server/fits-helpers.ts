@@ -1,17 +1,11 @@
+import { createSeededRandom } from "@shared/numerics/seeded-random";
 import { createHash, randomUUID } from "node:crypto";
 import type { Db } from "../../server/db/client";
 import { runPoints, runs, samples, storedFiles } from "../../server/db/schema";
 
-/** mulberry32: a small seeded generator (Tommy Ettinger's public-domain constant set), so synthetic runs repeat exactly. */
+/** Uniforms in [0, 1) from the shared seeded generator, so synthetic runs repeat exactly. */
 export function seededRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  return createSeededRandom(seed).uniform;
 }
 
 /** Standard normal deviates by Box–Muller from a uniform generator. */

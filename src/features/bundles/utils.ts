@@ -1,16 +1,8 @@
+import { humanSize } from "@shared/format/byte-size";
 import type { ShareLinkStatus } from "@shared/schemas/bundles";
 
 /** A size in SI units: "12.3 kB". */
-export function sizeText(bytes: number): string {
-  const units = ["B", "kB", "MB", "GB"];
-  let v = bytes;
-  let i = 0;
-  while (v >= 1000 && i < units.length - 1) {
-    v /= 1000;
-    i += 1;
-  }
-  return i === 0 ? `${bytes} B` : `${v.toFixed(1)} ${units[i]}`;
-}
+export const sizeText = humanSize;
 
 export const LINK_STATUS_WORDS: Record<ShareLinkStatus, string> = {
   active: "Active",

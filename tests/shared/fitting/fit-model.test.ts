@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { fitHeatCapacity } from "@shared/fitting/fit-model";
 import type { ModelDefinition } from "@shared/physics/model-types";
-import { createSeededRandom } from "../../helpers/seeded-random";
+import { createSeededRandom } from "@shared/numerics/seeded-random";
 import { syntheticRun } from "./synthetic-runs";
 
 const debyeDef: ModelDefinition = { components: [{ kind: "electronic" }, { kind: "debye" }] };

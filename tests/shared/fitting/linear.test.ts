@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { fitLinearLeastSquares, fitLowT, thetaDFromBeta } from "@shared/fitting/linear";
 import { expectClose } from "../../helpers/expect-close";
-import { createSeededRandom } from "../../helpers/seeded-random";
+import { createSeededRandom } from "@shared/numerics/seeded-random";
 
 describe("fitLinearLeastSquares", () => {
   it("matches the closed-form weighted straight line (Bevington & Robinson, 3rd ed., §6.3, from memory for equation numbers)", () => {

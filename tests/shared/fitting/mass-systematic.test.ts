@@ -4,7 +4,7 @@ import { fitLowT, thetaDFromBeta } from "@shared/fitting/linear";
 import { lowTMassSystematic, massSystematic } from "@shared/fitting/mass-systematic";
 import type { ModelDefinition } from "@shared/physics/model-types";
 import { expectClose } from "../../helpers/expect-close";
-import { createSeededRandom } from "../../helpers/seeded-random";
+import { createSeededRandom } from "@shared/numerics/seeded-random";
 import { syntheticRun } from "./synthetic-runs";
 
 const def: ModelDefinition = { components: [{ kind: "electronic" }, { kind: "debye" }] };

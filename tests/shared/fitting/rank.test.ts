@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { modelLabel, rankModels } from "@shared/fitting/rank";
 import type { ModelDefinition } from "@shared/physics/model-types";
-import { createSeededRandom } from "../../helpers/seeded-random";
+import { createSeededRandom } from "@shared/numerics/seeded-random";
 import { syntheticRun } from "./synthetic-runs";
 
 describe("rankModels", () => {

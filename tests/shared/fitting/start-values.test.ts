@@ -5,7 +5,7 @@ import { einsteinFunction } from "@shared/physics/einstein";
 import * as schottky from "@shared/physics/schottky";
 import type { ModelDefinition } from "@shared/physics/model-types";
 import { expectClose } from "../../helpers/expect-close";
-import { createSeededRandom } from "../../helpers/seeded-random";
+import { createSeededRandom } from "@shared/numerics/seeded-random";
 import { syntheticRun } from "./synthetic-runs";
 
 describe("peak positions used for start values", () => {

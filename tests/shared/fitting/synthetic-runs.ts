@@ -5,7 +5,7 @@
  */
 import { buildComposite } from "@shared/physics/composite";
 import type { ModelDefinition } from "@shared/physics/model-types";
-import type { SeededRandom } from "../../helpers/seeded-random";
+import type { SeededRandom } from "@shared/numerics/seeded-random";
 
 export interface SyntheticRun {
   temperatureK: number[];

@@ -1,5 +1,6 @@
 /**
- * A small seeded pseudo-random generator for synthetic test data (never for anything else).
+ * A small seeded pseudo-random generator for synthetic data (tests, the demo/scale seeds, the bench): never for
+ * anything that must be unpredictable.
  * mulberry32 (T. Ettinger, public domain) for uniforms, Box–Muller for standard normals
  * (Box & Muller, Ann. Math. Statist. 29 (1958) 610).
  */
@@ -10,6 +11,11 @@ export interface SeededRandom {
   normal(): number;
 }
 
+/**
+ * Makes a generator whose sequence depends only on the seed.
+ * @param seed any 32-bit integer
+ * @returns uniform() in [0, 1) and normal() standard normal deviates
+ */
 export function createSeededRandom(seed: number): SeededRandom {
   let state = seed >>> 0;
   const uniform = () => {
