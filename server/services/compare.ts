@@ -9,7 +9,7 @@ import type {
   ComparisonResult,
 } from "@shared/schemas/compare";
 import { combineInQuadrature, OUTLIER_THRESHOLD_SIGMA, unweightedMean, weightedMean } from "@shared/stats/weighted-mean";
-import { GAS_CONSTANT } from "@shared/physics/constants";
+import { thetaDFromBeta } from "@shared/physics/theta-d";
 import type { Db } from "../db/client";
 import { batches, fitParameters, fits, runPoints, runs, samples } from "../db/schema";
 import { notFound } from "../http-error";
@@ -203,7 +203,7 @@ function paramsOf(db: Db, fitIds: readonly string[]): Map<string, Map<string, Pa
 /** θ_D from β of C = γT + βT³: θ_D = (12π⁴ n R / 5β)^(1/3), and σ_θ/θ = σ_β/(3β). */
 function thetaFromBeta(beta: ParamRow, atoms: number): { value: number; stat: number | null; sys: number | null } | null {
   if (!(beta.value > 0) || !(atoms > 0)) return null;
-  const value = Math.cbrt((12 * Math.PI ** 4 * atoms * GAS_CONSTANT) / (5 * beta.value));
+  const value = thetaDFromBeta(beta.value, atoms);
   const scale = value / (3 * beta.value);
   return {
     value,
