@@ -18,6 +18,14 @@ function focusField(form: HTMLFormElement | null, name: string | undefined): voi
 }
 
 /**
+ * An extra check for parse(): the "confirmPassword" field must repeat the named password field.
+ * @param field name of the password input ("password" or "newPassword")
+ */
+export function confirmMatches(field: string): (values: Record<string, string>) => FieldErrors {
+  return (values) => (values[field] === values.confirmPassword ? {} : { confirmPassword: "The two passwords differ" });
+}
+
+/**
  * Validates a form with the same Zod schema the server uses, and keeps the messages to show:
  * one per field (first issue wins) plus one for the whole form (a server answer not tied to a field).
  */

@@ -11,7 +11,7 @@ import { TextLink } from "@/components/ui/text-link";
 import { invitationPreviewQueryOptions, meQueryOptions, useAcceptInvitation, useInvitationPreview, useMe, useSignOut } from "@/features/auth/api";
 import { ROLE_LABELS, ROLE_SUMMARIES } from "@/features/labs/utils";
 import { isApiError } from "@/lib/api-client";
-import { useSchemaForm } from "@/lib/use-schema-form";
+import { confirmMatches, useSchemaForm } from "@/lib/use-schema-form";
 
 /** A new person must give a name and password; the name rule is the one first-run setup uses. */
 const NewAccountForm = AcceptInvitationBody.required().extend({ displayName: SetupBody.shape.displayName });
@@ -126,9 +126,7 @@ function InvitationAction({ token, invitation, me }: { token: string; invitation
       className="space-y-4"
       onSubmit={(event) => {
         event.preventDefault();
-        const body = form.parse(event.currentTarget, (values) =>
-          values.password === values.confirmPassword ? {} : { confirmPassword: "The two passwords differ" },
-        );
+        const body = form.parse(event.currentTarget, confirmMatches("password"));
         if (!body) return;
         accept.mutate(body, {
           onSuccess: (next) => navigate(labOf(next, invitation), { replace: true }),

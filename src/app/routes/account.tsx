@@ -12,7 +12,7 @@ import { MeasuredValue } from "@/components/ui/measured-value";
 import { PageHeader } from "@/components/ui/page-header";
 import { useChangePassword, useMe } from "@/features/auth/api";
 import { RoleBadge } from "@/features/labs/components/role-badge";
-import { useSchemaForm } from "@/lib/use-schema-form";
+import { confirmMatches, useSchemaForm } from "@/lib/use-schema-form";
 
 export function Component() {
   const me = useMe().data;
@@ -91,9 +91,7 @@ function ChangePasswordForm() {
       onSubmit={(event) => {
         event.preventDefault();
         setDone(false);
-        const body = form.parse(event.currentTarget, (values) =>
-          values.newPassword === values.confirmPassword ? {} : { confirmPassword: "The two passwords differ" },
-        );
+        const body = form.parse(event.currentTarget, confirmMatches("newPassword"));
         if (!body) return;
         change.mutate(body, {
           onSuccess: () => {

@@ -6,7 +6,7 @@ import { Button } from "@/components/ui/button";
 import { TextField } from "@/components/ui/field";
 import { TextLink } from "@/components/ui/text-link";
 import { useResetPassword } from "@/features/auth/api";
-import { useSchemaForm } from "@/lib/use-schema-form";
+import { confirmMatches, useSchemaForm } from "@/lib/use-schema-form";
 
 export function Component() {
   const { token = "" } = useParams();
@@ -26,9 +26,7 @@ export function Component() {
         className="space-y-4"
         onSubmit={(event) => {
           event.preventDefault();
-          const body = form.parse(event.currentTarget, (values) =>
-            values.newPassword === values.confirmPassword ? {} : { confirmPassword: "The two passwords differ" },
-          );
+          const body = form.parse(event.currentTarget, confirmMatches("newPassword"));
           if (!body) return;
           reset.mutate(body, {
             onSuccess: () => navigate("/sign-in?reset=done", { replace: true }),

@@ -6,7 +6,7 @@ import { AuthFrame } from "@/components/ui/auth-frame";
 import { Button } from "@/components/ui/button";
 import { TextField } from "@/components/ui/field";
 import { setupStatusQueryOptions, useSetup } from "@/features/auth/api";
-import { useSchemaForm } from "@/lib/use-schema-form";
+import { confirmMatches, useSchemaForm } from "@/lib/use-schema-form";
 
 /** Only an empty install shows this page; afterwards people join by invitation. */
 export const loader = (queryClient: QueryClient) => async () => {
@@ -29,9 +29,7 @@ export function Component() {
         className="space-y-4"
         onSubmit={(event) => {
           event.preventDefault();
-          const body = form.parse(event.currentTarget, (values) =>
-            values.password === values.confirmPassword ? {} : { confirmPassword: "The two passwords differ" },
-          );
+          const body = form.parse(event.currentTarget, confirmMatches("password"));
           if (!body) return;
           setup.mutate(body, {
             onSuccess: (me) => {
