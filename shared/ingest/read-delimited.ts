@@ -72,7 +72,11 @@ function splitLine(line: string, delimiter: Delimiter): string[] {
     for (const m of line.matchAll(/"([^"]*)"|(\S+)/g)) out.push((m[1] ?? m[2]).trim());
     return out;
   }
-  if (!line.includes('"')) return line.split(delimiter).map((c) => c.trim());
+  if (!line.includes('"')) {
+    const cells = line.split(delimiter);
+    for (let k = 0; k < cells.length; k++) cells[k] = cells[k].trim();
+    return cells;
+  }
   const parsed = Papa.parse<string[]>(line, { delimiter, quoteChar: '"', header: false, newline: "\n" });
   return (parsed.data[0] ?? []).map((c) => String(c).trim());
 }
@@ -157,6 +161,8 @@ function checkLineSizes(lines: readonly string[]): void {
     if (line.length > MAX_LINE_CHARS) {
       throw new IngestError("LINE_TOO_LONG", `the line is ${line.length} characters long; lines of more than ${MAX_LINE_CHARS} are not read`, i + 1);
     }
+    // A line shorter than MAX_COLUMNS characters cannot hold MAX_COLUMNS delimiters.
+    if (line.length < MAX_COLUMNS) continue;
     let commas = 0;
     let semicolons = 0;
     let tabs = 0;
@@ -190,6 +196,22 @@ function checkNotBinary(text: string): void {
   }
 }
 
+/** Up to this many non-blank lines, the delimiter is chosen on all of them. */
+export const DELIMITER_SAMPLE_LINES = 2000;
+
+/**
+ * Lines the delimiter is chosen on: all non-blank lines of a short file; of a long one the first
+ * DELIMITER_SAMPLE_LINES / 2 (preamble, header and the first rows) and as many spread evenly over the rest.
+ */
+function delimiterSample(nonBlank: readonly number[]): readonly number[] {
+  if (nonBlank.length <= DELIMITER_SAMPLE_LINES) return nonBlank;
+  const head = DELIMITER_SAMPLE_LINES / 2;
+  const out = nonBlank.slice(0, head);
+  const rest = nonBlank.length - head;
+  for (let k = 0; k < head; k++) out.push(nonBlank[head + Math.floor((k * rest) / head)]);
+  return out;
+}
+
 function uniqueNames(cells: readonly string[]): string[] {
   const seen = new Map<string, number>();
   return cells.map((raw, i) => {
@@ -220,19 +242,25 @@ export function readDelimited(text: string): DelimitedTable {
   const nonBlank: number[] = [];
   for (let i = 0; i < lines.length; i++) if (lines[i].trim() !== "") nonBlank.push(i);
 
-  let best: { delimiter: Delimiter; infos: Map<number, LineInfo>; score: number } | null = null;
+  // The delimiter is chosen on a sample of the lines (all of them in a file of up to
+  // DELIMITER_SAMPLE_LINES), then every line is split once with it.
+  const sample = delimiterSample(nonBlank);
+  let best: { delimiter: Delimiter; score: number; sampled: (LineInfo | undefined)[] } | null = null;
   for (const delimiter of DELIMITERS) {
-    const infos = new Map<number, LineInfo>();
+    const sampled: (LineInfo | undefined)[] = new Array(lines.length);
     let score = 0;
-    for (const i of nonBlank) {
+    for (const i of sample) {
       const info = analyse(lines[i], delimiter);
-      infos.set(i, info);
+      sampled[i] = info;
       if (isDataLike(info)) score++;
     }
-    if (best === null || score > best.score) best = { delimiter, infos, score };
+    if (best === null || score > best.score) best = { delimiter, score, sampled };
   }
   if (best === null || best.score === 0) throw noRows(lines, nonBlank);
-  const { delimiter, infos } = best;
+  const { delimiter } = best;
+  // Lines are analysed when the header search reaches them; below the header they are only split.
+  const infoArray = best.sampled;
+  const infos = { get: (i: number): LineInfo => (infoArray[i] ??= analyse(lines[i], delimiter)) };
 
   // Find the header: names, then a line with a number, then mostly rows of numbers.
   let headerIndex = -1;
@@ -341,7 +369,7 @@ export function readDelimited(text: string): DelimitedTable {
   const headerLineNo = namesIndex === null ? null : namesIndex + 1;
   const split: { line: number; cells: string[] }[] = [];
   for (const i of dataLines) {
-    const cells = infos.get(i)!.cells;
+    const cells = infoArray[i]?.cells ?? splitLine(lines[i], delimiter);
     if (usedLength(cells) === 0) continue;
     if (!fits(cells, columnCount)) {
       const where = headerLineNo === null ? `the first data row (line ${dataStart + 1})` : `the header (line ${headerLineNo})`;
@@ -352,7 +380,7 @@ export function readDelimited(text: string): DelimitedTable {
       });
       continue;
     }
-    split.push({ line: i + 1, cells: toCount(cells, columnCount) });
+    split.push({ line: i + 1, cells: cells.length === columnCount ? cells : toCount(cells, columnCount) });
   }
 
   const allowComma = commaAllowed(delimiter);
@@ -360,36 +388,47 @@ export function readDelimited(text: string): DelimitedTable {
   if (allowComma) {
     outer: for (const r of split)
       for (const c of r.cells)
-        if (COMMA_NUMBER.test(c)) {
+        if (c.includes(",") && COMMA_NUMBER.test(c)) {
           decimalMark = ",";
           break outer;
         }
   }
 
-  const columnKinds: ("number" | "text")[] = [];
-  for (let c = 0; c < columnCount; c++) {
-    let numbers = 0;
-    let texts = 0;
-    for (const r of split) {
-      const k = classify(r.cells[c], allowComma);
-      if (k === "number" || k === "nonfinite") numbers++;
-      else if (k === "text") texts++;
-    }
-    columnKinds.push(texts > numbers ? "text" : "number");
-  }
-
-  const rows: DataRow[] = [];
-  for (const r of split) {
-    const values: (number | null)[] = new Array(columnCount).fill(null);
+  // One pass reads every cell: its kind (for the column kinds) and, for numbers, the value.
+  const kinds = new Uint8Array(split.length * columnCount);
+  const numbers = new Float64Array(split.length * columnCount);
+  const numberCounts = new Array<number>(columnCount).fill(0);
+  const textCounts = new Array<number>(columnCount).fill(0);
+  for (let r = 0; r < split.length; r++) {
+    const cells = split[r].cells;
     for (let c = 0; c < columnCount; c++) {
-      if (columnKinds[c] === "text") continue;
-      const cell = r.cells[c];
-      if (cell === "") continue;
-      const parsed = parseNumber(cell, decimalMark);
-      if (typeof parsed === "number") values[c] = parsed;
-      else note(parsed.code, { line: r.line, column: header[c], message: `line ${r.line}, column '${header[c]}': ${parsed.message}` });
+      const at = r * columnCount + c;
+      const kind = readCell(cells[c], decimalMark, allowComma, numbers, at);
+      kinds[at] = kind;
+      if (kind === CELL_TEXT) textCounts[c]++;
+      else if (kind !== CELL_EMPTY) numberCounts[c]++;
     }
-    rows.push({ line: r.line, cells: r.cells, values });
+  }
+  const columnKinds: ("number" | "text")[] = [];
+  for (let c = 0; c < columnCount; c++) columnKinds.push(textCounts[c] > numberCounts[c] ? "text" : "number");
+
+  const rows: DataRow[] = new Array(split.length);
+  for (let r = 0; r < split.length; r++) {
+    const { line, cells } = split[r];
+    const values: (number | null)[] = new Array(columnCount);
+    for (let c = 0; c < columnCount; c++) {
+      values[c] = null;
+      if (columnKinds[c] === "text") continue;
+      const at = r * columnCount + c;
+      const kind = kinds[at];
+      if (kind === CELL_NUMBER) values[c] = numbers[at];
+      else if (kind !== CELL_EMPTY) {
+        const parsed = parseNumber(cells[c], decimalMark);
+        if (typeof parsed === "number") values[c] = parsed;
+        else note(parsed.code, { line, column: header[c], message: `line ${line}, column '${header[c]}': ${parsed.message}` });
+      }
+    }
+    rows[r] = { line, cells, values };
   }
 
   if (issues.length > 0) {
@@ -415,6 +454,35 @@ export function readDelimited(text: string): DelimitedTable {
     preamble,
     byteOrderMark,
   };
+}
+
+const CELL_EMPTY = 0;
+const CELL_NUMBER = 1;
+/** Counts as a number for the column kind, but is refused (non-finite, wrong decimal mark, …). */
+const CELL_BAD_NUMBER = 2;
+const CELL_TEXT = 3;
+
+/**
+ * Reads one cell: its kind, and for a well-formed finite number the value in `numbers[at]`. The kind
+ * rules are those of `classify`; the value rules those of `parseNumber` (which words the refusals).
+ */
+function readCell(cell: string, decimalMark: DecimalMark, allowComma: boolean, numbers: Float64Array, at: number): number {
+  if (cell === "") return CELL_EMPTY;
+  if (NUMBER.test(cell)) {
+    if (decimalMark === "," && cell.includes(".")) return CELL_BAD_NUMBER;
+    const v = Number(cell);
+    if (!Number.isFinite(v)) return CELL_BAD_NUMBER;
+    numbers[at] = v;
+    return CELL_NUMBER;
+  }
+  if (allowComma && COMMA_NUMBER.test(cell)) {
+    const v = Number(cell.replace(",", "."));
+    if (decimalMark !== "," || !Number.isFinite(v)) return CELL_BAD_NUMBER;
+    numbers[at] = v;
+    return CELL_NUMBER;
+  }
+  if (NON_FINITE.test(cell)) return CELL_BAD_NUMBER;
+  return CELL_TEXT;
 }
 
 function parseNumber(cell: string, decimalMark: DecimalMark): number | { code: IngestError["code"]; message: string } {

@@ -179,19 +179,19 @@ function collectRows(table: DelimitedTable, mapping: ImportMapping): Row[] {
 function splitByField(rows: readonly Row[], toleranceT: number): { fieldT: number | null; rows: Row[] }[] {
   if (rows.length === 0) return [];
   if (rows[0].field === null) return [{ fieldT: null, rows: [...rows] }];
-  const order = [...rows].sort((a, b) => a.field! - b.field!);
-  const groups: Row[][] = [];
-  let start = Number.NaN;
-  for (const r of order) {
-    if (groups.length === 0 || r.field! - start > toleranceT) {
-      groups.push([]);
-      start = r.field!;
-    }
-    groups[groups.length - 1].push(r);
+  // Groups are formed over the distinct field values in ascending order; rows then go to their
+  // value's group in file order (the scan-direction check reads each group that way).
+  const values = [...new Set(rows.map((r) => r.field!))].sort((a, b) => a - b);
+  const groupOfValue = new Map<number, number>();
+  const starts: number[] = [];
+  for (const v of values) {
+    if (starts.length === 0 || v - starts[starts.length - 1] > toleranceT) starts.push(v);
+    groupOfValue.set(v, starts.length - 1);
   }
-  // Keep each group in file order: the scan-direction check reads it that way.
+  const groups: Row[][] = starts.map(() => []);
+  const ordered = [...rows].sort((a, b) => a.line - b.line);
+  for (const r of ordered) groups[groupOfValue.get(r.field!)!].push(r);
   return groups.map((g) => {
-    g.sort((a, b) => a.line - b.line);
     const fieldT = g.reduce((s, r) => s + r.field!, 0) / g.length;
     return { fieldT, rows: g };
   });
@@ -209,14 +209,14 @@ function averageSameTemperature(rows: readonly Row[], relTol: number): Averaged[
     const t0 = sorted[i].t;
     let j = i + 1;
     while (j < sorted.length && sorted[j].t - t0 <= relTol * t0) j++;
-    const group = sorted.slice(i, j);
-    const n = group.length;
+    const n = j - i;
     let st = 0;
     let sc = 0;
     let ss = 0;
     let allSigma = true;
     let line = Number.POSITIVE_INFINITY;
-    for (const g of group) {
+    for (let k = i; k < j; k++) {
+      const g = sorted[k];
       st += g.t;
       sc += g.c;
       if (g.sigma === null) allSigma = false;
@@ -224,9 +224,9 @@ function averageSameTemperature(rows: readonly Row[], relTol: number): Averaged[
       line = Math.min(line, g.line);
     }
     out.push({
-      t: n === 1 ? group[0].t : st / n,
-      c: n === 1 ? group[0].c : sc / n,
-      sigma: allSigma ? (n === 1 ? group[0].sigma : Math.sqrt(ss) / n) : null,
+      t: n === 1 ? sorted[i].t : st / n,
+      c: n === 1 ? sorted[i].c : sc / n,
+      sigma: allSigma ? (n === 1 ? sorted[i].sigma : Math.sqrt(ss) / n) : null,
       sourceLine: line,
       rowsAveraged: n,
     });

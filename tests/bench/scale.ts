@@ -110,7 +110,7 @@ async function compareFigures(): Promise<BenchLine[]> {
 }
 
 /** A synthetic 100,000-row export: T (K), total C (J/K), σ (J/K), field (T) in three fields; seeded. */
-function bigExport(rows: number): Uint8Array {
+export function bigExport(rows: number): Uint8Array {
   const rand = createSeededRandom(12345).uniform;
   const moles = 10e-3 / 63.546;
   const lines = ["# SYNTHETIC DATA: invented for the Thetafold bench", "Temperature (K),Heat capacity (J/K),Uncertainty (J/K),Field (T)"];

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { IngestError } from "@shared/ingest/ingest-error";
-import { decodeBytes, findSampleMassMg, MAX_LINE_CHARS, readDelimited, summarizeTable } from "@shared/ingest/read-delimited";
+import { decodeBytes, DELIMITER_SAMPLE_LINES, findSampleMassMg, MAX_LINE_CHARS, readDelimited, summarizeTable } from "@shared/ingest/read-delimited";
 import { fixtureText } from "./fixture-files";
 
 /** Runs fn and returns the IngestError it throws (fails the test if it throws anything else or nothing). */
@@ -266,5 +266,38 @@ describe("readDelimited size limits (hostile files are refused in one linear pas
     const table = readDelimited([header, row(2), row(3), row(4)].join("\n"));
     expect(table.header).toHaveLength(20);
     expect(table.rows).toHaveLength(3);
+  });
+});
+
+describe("readDelimited on long files (the delimiter is chosen on a sample of the lines)", () => {
+  // A long semicolon export with decimal commas; the numbers are made up here (common practice, no source).
+  const rows = 3 * DELIMITER_SAMPLE_LINES;
+  const longSemicolon = (lineAt?: (i: number) => string | null): string => {
+    const lines = ["Run note; synthetic", "T (K);C (mJ/K);Field (T)"];
+    for (let i = 0; i < rows; i++) lines.push(lineAt?.(i) ?? `${(2 + i * 0.1).toFixed(1).replace(".", ",")};${i},25;0`);
+    return lines.join("\n") + "\n";
+  };
+
+  it("reads every row of a file longer than the sample, with its delimiter and decimal mark", () => {
+    const t = readDelimited(longSemicolon());
+    expect(t.delimiter).toBe(";");
+    expect(t.decimalMark).toBe(",");
+    expect(t.headerLine).toBe(2);
+    expect(t.rows).toHaveLength(rows);
+    const last = t.rows[rows - 1];
+    expect(last.line).toBe(rows + 2);
+    expect(last.values[0]).toBeCloseTo(2 + (rows - 1) * 0.1, 9);
+    expect(last.values[1]).toBe(rows - 1 + 0.25);
+  });
+
+  it("still refuses a ragged row or a bad number far below the sample, naming its line", () => {
+    const deep = rows - 7; // outside the first DELIMITER_SAMPLE_LINES / 2 lines
+    const ragged = refusal(() => readDelimited(longSemicolon((i) => (i === deep ? "5,5;1,0" : null))));
+    expect(ragged.code).toBe("RAGGED_ROW");
+    expect(ragged.line).toBe(deep + 3);
+    const point = refusal(() => readDelimited(longSemicolon((i) => (i === deep ? "5,5;1.0;0" : null))));
+    expect(point.code).toBe("NOT_A_NUMBER");
+    expect(point.line).toBe(deep + 3);
+    expect(point.message).toMatch(/decimal point/);
   });
 });
