@@ -1,4 +1,4 @@
-import { and, asc, eq, inArray, or, type SQL } from "drizzle-orm";
+import { and, asc, eq, inArray, or, sql, type SQL } from "drizzle-orm";
 import type {
   AvailableParameter,
   CompareCurve,
@@ -41,7 +41,8 @@ interface FitRow {
   batchCode: string | null;
   x: number | null;
   xName: string | null;
-  model: Record<string, unknown>;
+  /** The stored model definition as its JSON text (parsed once per distinct text, see modelWords). */
+  modelText: string;
   windowMinK: number;
   windowMaxK: number;
   approvedAt: number | null;
@@ -110,6 +111,20 @@ export function modelKey(model: Record<string, unknown>): string {
   return keys.join("+") + (model.constrainAtoms ? ";constrained" : "");
 }
 
+/** Label and key of stored model texts, each distinct text parsed once (a lab has a handful of models). */
+function modelWords(): (text: string) => { label: string; key: string } {
+  const seen = new Map<string, { label: string; key: string }>();
+  return (text) => {
+    let w = seen.get(text);
+    if (!w) {
+      const model = JSON.parse(text) as Record<string, unknown>;
+      w = { label: modelLabel(model), key: modelKey(model) };
+      seen.set(text, w);
+    }
+    return w;
+  };
+}
+
 /** Two windows count as the same when both ends agree within 0.05 K or 1 % (common practice, no source). */
 function sameWindow(a: FitRow, b: FitRow): boolean {
   const close = (p: number, q: number) => Math.abs(p - q) <= Math.max(0.05, 0.01 * Math.max(Math.abs(p), Math.abs(q)));
@@ -163,7 +178,7 @@ function approvedFitRows(db: Db, labId: string, batchIds: readonly string[], sam
       batchCode: batches.code,
       x: samples.compositionX,
       xName: samples.compositionName,
-      model: fits.model,
+      modelText: sql<string>`${fits.model}`,
       windowMinK: fits.windowMinK,
       windowMaxK: fits.windowMaxK,
       approvedAt: fits.approvedAt,
@@ -177,9 +192,14 @@ function approvedFitRows(db: Db, labId: string, batchIds: readonly string[], sam
     .all();
 }
 
-function paramsOf(db: Db, fitIds: readonly string[]): Map<string, Map<string, ParamRow>> {
+/**
+ * The parameters of the given approved fits of a lab, by fit and name. Read with one join on the lab's
+ * approved fits (not a list of thousands of ids), then kept to `fitIds`.
+ */
+function paramsOf(db: Db, labId: string, fitIds: readonly string[]): Map<string, Map<string, ParamRow>> {
   const out = new Map<string, Map<string, ParamRow>>();
   if (fitIds.length === 0) return out;
+  const wanted = new Set(fitIds);
   const rows = db
     .select({
       fitId: fitParameters.fitId,
@@ -190,9 +210,11 @@ function paramsOf(db: Db, fitIds: readonly string[]): Map<string, Map<string, Pa
       unit: fitParameters.unit,
     })
     .from(fitParameters)
-    .where(inArray(fitParameters.fitId, [...fitIds]))
+    .innerJoin(fits, eq(fits.id, fitParameters.fitId))
+    .where(and(eq(fits.labId, labId), eq(fits.state, "approved")))
     .all();
   for (const r of rows) {
+    if (!wanted.has(r.fitId)) continue;
     let m = out.get(r.fitId);
     if (!m) out.set(r.fitId, (m = new Map()));
     m.set(r.name, r);
@@ -242,8 +264,10 @@ export function compareFits(db: Db, labId: string, input: CompareInput): Compari
   const fitRows = approvedFitRows(db, labId, input.batchIds, input.sampleIds);
   const params = paramsOf(
     db,
+    labId,
     fitRows.map((f) => f.fitId),
   );
+  const words = modelWords();
 
   const available = new Map<string, AvailableParameter>();
   for (const m of params.values()) {
@@ -293,8 +317,8 @@ export function compareFits(db: Db, labId: string, input: CompareInput): Compari
       batchCode: f.batchCode,
       x: f.x,
       xName: f.xName,
-      model: modelLabel(f.model),
-      modelKey: modelKey(f.model),
+      model: words(f.modelText).label,
+      modelKey: words(f.modelText).key,
       windowMinK: f.windowMinK,
       windowMaxK: f.windowMaxK,
       parameter: input.parameter,
@@ -444,7 +468,7 @@ export const CURVE_DISPLAY_POINTS = 600;
 export function compareCurves(db: Db, labId: string, input: CompareInput): CompareCurve[] {
   const result = compareFits(db, labId, input);
   const fitIds = result.rows.map((r) => r.fitId);
-  const params = paramsOf(db, fitIds);
+  const params = paramsOf(db, labId, fitIds);
   const atomsByRun = new Map(
     fitIds.length === 0
       ? []
