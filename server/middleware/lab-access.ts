@@ -1,4 +1,4 @@
-import { and, eq } from "drizzle-orm";
+import { and, eq, sql } from "drizzle-orm";
 import type { RequestHandler } from "express";
 import type { Role } from "@shared/schemas/auth";
 import type { Db } from "../db/client";
@@ -13,15 +13,17 @@ const rank: Record<Role, number> = { guest: 0, researcher: 1, lead: 2 };
  * exist, so ids of other labs leak nothing. Sets res.locals.labId and res.locals.role.
  */
 export function requireLab(db: Db, minimum: Role): RequestHandler {
+  // Prepared once per guard: this query runs on every lab request.
+  const membership = db
+    .select({ role: memberships.role })
+    .from(memberships)
+    .where(and(eq(memberships.labId, sql.placeholder("labId")), eq(memberships.userId, sql.placeholder("userId"))))
+    .prepare();
   return (req, res, next) => {
     const user = res.locals.user;
     if (!user) throw new HttpError(401, "UNAUTHENTICATED", "Sign in first");
     const labId = String(req.params.labId ?? "");
-    const row = db
-      .select({ role: memberships.role })
-      .from(memberships)
-      .where(and(eq(memberships.labId, labId), eq(memberships.userId, user.id)))
-      .get();
+    const row = membership.get({ labId, userId: user.id });
     if (!row) throw new HttpError(404, "NOT_FOUND", "No such lab");
     if (rank[row.role] < rank[minimum]) {
       throw new HttpError(403, "FORBIDDEN", `This needs the ${minimum} role in this lab; yours is ${row.role}`);
