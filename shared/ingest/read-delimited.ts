@@ -237,7 +237,7 @@ export function readDelimited(text: string): DelimitedTable {
   const body = byteOrderMark ? text.slice(1) : text;
   if (body.trim().length === 0) throw new IngestError("EMPTY_FILE", "the file is empty");
   checkNotBinary(body);
-  const lines = body.split(/\r\n|\n|\r/);
+  const lines = body.includes("\r") ? body.split(/\r\n|\n|\r/) : body.split("\n");
   checkLineSizes(lines);
   const nonBlank: number[] = [];
   for (let i = 0; i < lines.length; i++) if (lines[i].trim() !== "") nonBlank.push(i);
@@ -470,7 +470,7 @@ function readCell(cell: string, decimalMark: DecimalMark, allowComma: boolean, n
   if (cell === "") return CELL_EMPTY;
   if (NUMBER.test(cell)) {
     if (decimalMark === "," && cell.includes(".")) return CELL_BAD_NUMBER;
-    const v = Number(cell);
+    const v = parseFloat(cell);
     if (!Number.isFinite(v)) return CELL_BAD_NUMBER;
     numbers[at] = v;
     return CELL_NUMBER;

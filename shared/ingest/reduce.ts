@@ -202,7 +202,11 @@ function splitByField(rows: readonly Row[], toleranceT: number): { fieldT: numbe
  * Mean of T and of C; σ of the mean sqrt(Σσᵢ²)/N when every row has σ, else null.
  */
 function averageSameTemperature(rows: readonly Row[], relTol: number): Averaged[] {
-  const sorted = [...rows].sort((a, b) => a.t - b.t || a.line - b.line);
+  // A sweep usually arrives in order already: check that in one pass before sorting.
+  const inOrder = (a: Row, b: Row) => a.t - b.t || a.line - b.line;
+  let ordered = true;
+  for (let k = 1; k < rows.length && ordered; k++) ordered = inOrder(rows[k - 1], rows[k]) <= 0;
+  const sorted = ordered ? [...rows] : [...rows].sort(inOrder);
   const out: Averaged[] = [];
   let i = 0;
   while (i < sorted.length) {
