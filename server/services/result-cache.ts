@@ -71,7 +71,8 @@ export function createResultCache(db: Db, maxBytes = RESULT_CACHE_MAX_BYTES): Re
         body,
         etag: `"${hash}"`,
         token: now,
-        gzipped: () => (gz ??= { body: gzipSync(body), etag: `"${hash}-gzip"` }),
+        // Level 3: half the time of the default level 6 for about 9 % more bytes (measured on a 1.4 MB comparison).
+        gzipped: () => (gz ??= { body: gzipSync(body, { level: 3 }), etag: `"${hash}-gzip"` }),
       };
       entries.set(key, entry);
       return entry;
