@@ -1,6 +1,5 @@
 import { randomUUID } from "node:crypto";
 import type { AddressInfo } from "node:net";
-import { simpleParser } from "mailparser";
 import { SMTPServer } from "smtp-server";
 import type { Db } from "../db/client";
 import { mailMessages } from "../db/schema";
@@ -38,7 +37,9 @@ export async function startFakeSmtp(db: Db): Promise<FakeSmtpServer> {
           return;
         }
         const raw = Buffer.concat(chunks);
-        simpleParser(raw)
+        // Loaded on the first message: mailparser is a large import that start-up does not need.
+        import("mailparser")
+          .then(({ simpleParser }) => simpleParser(raw))
           .then((parsed) => {
             const envelopeTo = session.envelope.rcptTo.map((a) => a.address).join(", ");
             const headerTo = Array.isArray(parsed.to) ? parsed.to.map((a) => a.text).join(", ") : parsed.to?.text;

@@ -2,7 +2,6 @@ import { createHash } from "node:crypto";
 import { createReadStream, createWriteStream } from "node:fs";
 import { Transform } from "node:stream";
 import { pipeline } from "node:stream/promises";
-import { ZipArchive } from "archiver";
 import { unzipSync } from "fflate";
 import type { BagVerifyReport, BagFailure } from "@shared/schemas/bundles";
 import { humanSize } from "@shared/format/byte-size";
@@ -182,6 +181,8 @@ export async function writeBagZip(
   const tagManifest = manifestText(tagFiles.map(([path, text]) => ({ path, sha256: sha256Of(Buffer.from(text, "utf8")) })));
   tagFiles.push(["tagmanifest-sha256.txt", tagManifest]);
 
+  // Loaded on first use: archiver is a large import that only bundle building needs (server start-up stays short).
+  const { ZipArchive } = await import("archiver");
   const zip = new ZipArchive({ zlib: { level: 9 } });
   const zipHash = createHash("sha256");
   let zipBytes = 0;
