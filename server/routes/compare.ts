@@ -1,33 +1,15 @@
-import { Router, type Request, type Response } from "express";
+import { Router } from "express";
 import { CompareQuery } from "@shared/schemas/compare";
 import type { AppContext } from "../context";
 import { labGuards } from "../middleware/lab-access";
 import { compareCurves, compareFits, comparisonCsv } from "../services/compare";
-import { createResultCache, type CachedBody } from "../services/result-cache";
+import { sendCached } from "../send-cached";
+import { createResultCache } from "../services/result-cache";
 
 /** The cache key of a comparison: lab, route and the query with its id lists in a canonical order. */
 function cacheKey(route: string, labId: string, query: CompareQuery): string {
   const ids = (list: readonly string[]) => [...new Set(list)].sort().join(",");
   return [route, labId, query.parameter, query.groupBy, ids(query.batchIds), ids(query.sampleIds)].join("\u0000");
-}
-
-/**
- * Sends a cached body with its entity tag, gzip-compressed when the client accepts it (compressed
- * once per body, not per request); 304 when the client already holds this version.
- */
-function sendCached(req: Request, res: Response, cached: CachedBody, type: string): void {
-  const gzip = req.acceptsEncodings("gzip", "identity") === "gzip";
-  const chosen = gzip ? cached.gzipped() : cached;
-  res.setHeader("ETag", chosen.etag);
-  res.setHeader("Vary", "Accept-Encoding");
-  // The browser keeps the copy but asks again each time (the answer is a 304 while nothing changed).
-  res.setHeader("Cache-Control", "private, no-cache");
-  if (req.fresh) {
-    res.status(304).end();
-    return;
-  }
-  if (gzip) res.setHeader("Content-Encoding", "gzip");
-  res.type(type).send(chosen.body);
 }
 
 /**

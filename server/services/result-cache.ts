@@ -12,7 +12,7 @@ export interface CachedBody {
   gzipped(): { body: Buffer; etag: string };
 }
 
-/** Counts since the cache was made, for the bench and the tests. */
+/** Counts since the cache was made (the tests read them). */
 export interface ResultCacheStats {
   hits: number;
   misses: number;
