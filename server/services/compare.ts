@@ -260,6 +260,15 @@ const collator = new Intl.Collator("en", { numeric: true, sensitivity: "base" })
  * @see J. R. Taylor, An Introduction to Error Analysis, 2nd ed., §7.2 (weighted mean)
  */
 export function compareFits(db: Db, labId: string, input: CompareInput): ComparisonResult {
+  return compareWithInputs(db, labId, input).result;
+}
+
+/** compareFits, with the parameters and atom counts it read (compareCurves needs them too). */
+function compareWithInputs(
+  db: Db,
+  labId: string,
+  input: CompareInput,
+): { result: ComparisonResult; params: Map<string, Map<string, ParamRow>>; atomsByFit: Map<string, number> } {
   checkSelection(db, labId, input.batchIds, input.sampleIds);
   const fitRows = approvedFitRows(db, labId, input.batchIds, input.sampleIds);
   const params = paramsOf(
@@ -441,7 +450,8 @@ export function compareFits(db: Db, labId: string, input: CompareInput): Compari
   }
 
   const ordered = orderedKeys.flatMap((k) => byGroup.get(k)!.rows);
-  return {
+  const atomsByFit = new Map(fitRows.map((f) => [f.fitId, f.runAtoms ?? f.sampleAtoms] as const));
+  const result: ComparisonResult = {
     parameter: input.parameter,
     unit: unitOf,
     groupBy: input.groupBy,
@@ -451,6 +461,7 @@ export function compareFits(db: Db, labId: string, input: CompareInput): Compari
     notes,
     availableParameters: [...available.values()].sort((a, b) => collator.compare(a.name, b.name)),
   };
+  return { result, params, atomsByFit };
 }
 
 /** Most points per curve sent for plotting; display only, never used to compute anything. */
@@ -466,20 +477,7 @@ export const CURVE_DISPLAY_POINTS = 600;
  * @throws HttpError 404 as compareFits
  */
 export function compareCurves(db: Db, labId: string, input: CompareInput): CompareCurve[] {
-  const result = compareFits(db, labId, input);
-  const fitIds = result.rows.map((r) => r.fitId);
-  const params = paramsOf(db, labId, fitIds);
-  const atomsByRun = new Map(
-    fitIds.length === 0
-      ? []
-      : db
-          .select({ id: runs.id, runAtoms: runs.atomsPerFormulaUnit, sampleAtoms: samples.atomsPerFormulaUnit })
-          .from(runs)
-          .innerJoin(samples, eq(samples.id, runs.sampleId))
-          .where(inArray(runs.id, [...new Set(result.rows.map((r) => r.runId))]))
-          .all()
-          .map((r) => [r.id, r.runAtoms ?? r.sampleAtoms] as const),
-  );
+  const { result, params, atomsByFit } = compareWithInputs(db, labId, input);
   return result.rows.map((r) => {
     const pts = db
       .select({ t: runPoints.temperatureK, cp: runPoints.cp })
@@ -491,7 +489,7 @@ export function compareCurves(db: Db, labId: string, input: CompareInput): Compa
     const shown = decimated
       ? Array.from({ length: CURVE_DISPLAY_POINTS }, (_, i) => pts[Math.round((i * (pts.length - 1)) / (CURVE_DISPLAY_POINTS - 1))])
       : pts;
-    const atoms = atomsByRun.get(r.runId) ?? 1;
+    const atoms = atomsByFit.get(r.fitId) ?? 1;
     const p = params.get(r.fitId);
     return {
       fitId: r.fitId,
