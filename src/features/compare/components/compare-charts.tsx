@@ -15,19 +15,8 @@ import {
 import type { CompareCurve, ComparisonResult } from "@shared/schemas/compare";
 import { seriesColor } from "@/lib/series-palette";
 import { useSettings } from "@/lib/settings";
+import { CHART_AXIS, CHART_GRID, xAxisTitle, yAxisTitle } from "@/components/ui/chart-style";
 import { collapsePoints, cOverT3Points, logTicks, parameterSymbol, shortNumber, universalDebyeCurve } from "../utils";
-
-const AXIS = { stroke: "var(--color-line-strong)", tick: { fill: "var(--color-ink-muted)", fontSize: 12 } };
-const xLabel = (value: string) => ({ value, position: "insideBottom" as const, offset: -4, fill: "var(--color-ink-muted)", fontSize: 12 });
-const yLabel = (value: string) => ({
-  value,
-  angle: -90,
-  position: "insideLeft" as const,
-  offset: 10,
-  fill: "var(--color-ink-muted)",
-  fontSize: 12,
-  style: { textAnchor: "middle" as const },
-});
 
 /** The chosen parameter by batch (groups side by side) or against x, each fit with its error bar, and each group's weighted mean. */
 export function ParameterChart({ result }: { result: ComparisonResult }) {
@@ -67,7 +56,7 @@ export function ParameterChart({ result }: { result: ComparisonResult }) {
       <div className="h-80 w-full" data-testid="parameter-chart">
         <ResponsiveContainer width="100%" height="100%">
           <ComposedChart margin={{ top: 12, right: 20, bottom: 12, left: 8 }}>
-            <CartesianGrid stroke="var(--color-line)" strokeDasharray="2 4" />
+            <CartesianGrid {...CHART_GRID} />
             <XAxis
               type="number"
               dataKey="x"
@@ -75,11 +64,11 @@ export function ParameterChart({ result }: { result: ComparisonResult }) {
               ticks={byX ? [...new Set(xs)].sort((a, b) => a - b) : result.groups.map((_, i) => i)}
               tickFormatter={(v: number) => (byX ? shortNumber(v) : (result.groups[Math.round(v)]?.label ?? ""))}
               allowDecimals={byX}
-              label={xLabel(byX ? "composition x" : "batch")}
+              label={xAxisTitle(byX ? "composition x" : "batch")}
               height={44}
-              {...AXIS}
+              {...CHART_AXIS}
             />
-            <YAxis type="number" dataKey="y" width={72} domain={["auto", "auto"]} tickFormatter={shortNumber} label={yLabel(`${sym}${unit}`)} {...AXIS} />
+            <YAxis type="number" dataKey="y" width={72} domain={["auto", "auto"]} tickFormatter={shortNumber} label={yAxisTitle(`${sym}${unit}`)} {...CHART_AXIS} />
             {pointsByGroup.map((pts, i) => (
               <Scatter key={result.groups[i].key} name={result.groups[i].label} data={pts} fill={seriesColor(i, resolvedTheme)} shape="circle" isAnimationActive={false}>
                 <ErrorBar dataKey="err" direction="y" stroke={seriesColor(i, resolvedTheme)} width={4} />
@@ -143,9 +132,9 @@ export function CollapseChart({ curves }: { curves: readonly CompareCurve[] }) {
       <div className="h-80 w-full" data-testid="collapse-chart">
         <ResponsiveContainer width="100%" height="100%">
           <ComposedChart margin={{ top: 12, right: 20, bottom: 12, left: 8 }}>
-            <CartesianGrid stroke="var(--color-line)" strokeDasharray="2 4" />
-            <XAxis type="number" dataKey="x" scale="log" domain={[0.01, 2]} allowDataOverflow ticks={[0.01, 0.02, 0.05, 0.1, 0.2, 0.5, 1, 2]} tickFormatter={shortNumber} label={xLabel("T/θ_D")} height={44} {...AXIS} />
-            <YAxis type="number" dataKey="y" width={60} domain={[0, 1.2]} allowDataOverflow tickFormatter={shortNumber} label={yLabel("C/(3nR)")} {...AXIS} />
+            <CartesianGrid {...CHART_GRID} />
+            <XAxis type="number" dataKey="x" scale="log" domain={[0.01, 2]} allowDataOverflow ticks={[0.01, 0.02, 0.05, 0.1, 0.2, 0.5, 1, 2]} tickFormatter={shortNumber} label={xAxisTitle("T/θ_D")} height={44} {...CHART_AXIS} />
+            <YAxis type="number" dataKey="y" width={60} domain={[0, 1.2]} allowDataOverflow tickFormatter={shortNumber} label={yAxisTitle("C/(3nR)")} {...CHART_AXIS} />
             <ReferenceLine y={1} stroke="var(--color-frost)" strokeDasharray="6 4" label={{ value: "Dulong–Petit 3nR", position: "insideTopLeft", fill: "var(--color-frost-ink)", fontSize: 12 }} />
             <Line name="Debye curve" data={universal} dataKey="y" type="monotone" dot={false} stroke="var(--color-ink)" strokeWidth={2} isAnimationActive={false} />
             {series.map(({ c, pts }, i) => (
@@ -176,9 +165,9 @@ export function CT3Chart({ curves }: { curves: readonly CompareCurve[] }) {
       <div className="h-80 w-full" data-testid="ct3-chart">
         <ResponsiveContainer width="100%" height="100%">
           <ComposedChart margin={{ top: 12, right: 20, bottom: 12, left: 16 }}>
-            <CartesianGrid stroke="var(--color-line)" strokeDasharray="2 4" />
-            <XAxis type="number" dataKey="x" scale="log" domain={domain} allowDataOverflow ticks={logTicks(domain[0], domain[1])} tickFormatter={shortNumber} label={xLabel("T (K)")} height={44} {...AXIS} />
-            <YAxis type="number" dataKey="y" width={76} domain={["auto", "auto"]} tickFormatter={shortNumber} label={yLabel("C/T³ (J/(mol·K⁴))")} {...AXIS} />
+            <CartesianGrid {...CHART_GRID} />
+            <XAxis type="number" dataKey="x" scale="log" domain={domain} allowDataOverflow ticks={logTicks(domain[0], domain[1])} tickFormatter={shortNumber} label={xAxisTitle("T (K)")} height={44} {...CHART_AXIS} />
+            <YAxis type="number" dataKey="y" width={76} domain={["auto", "auto"]} tickFormatter={shortNumber} label={yAxisTitle("C/T³ (J/(mol·K⁴))")} {...CHART_AXIS} />
             {series.map(({ c, pts }, i) => (
               <Line key={c.fitId} name={c.label} data={pts} dataKey="y" type="linear" dot={false} stroke={seriesColor(i, resolvedTheme)} strokeWidth={1.5} isAnimationActive={false} />
             ))}

@@ -16,6 +16,7 @@ import {
   useXAxisScale,
 } from "recharts";
 import type { CurvePoint } from "@shared/schemas/fits";
+import { CHART_AXIS, CHART_GRID, xAxisTitle, yAxisTitle } from "@/components/ui/chart-style";
 import { decimateForDisplay, logTicks } from "../utils";
 
 /** R in J/(mol·K), CODATA 2018 (exact from k_B and N_A); only for the C/(3nR) display scale. */
@@ -216,7 +217,7 @@ export function FitChart({ points, view, atomsPerFormulaUnit: n, window, onWindo
     <div style={{ height }} className="w-full select-none" data-testid="fit-chart">
       <ResponsiveContainer width="100%" height="100%">
         <ComposedChart margin={{ top: 12, right: 20, bottom: 8, left: 8 }}>
-          <CartesianGrid stroke="var(--color-line)" strokeDasharray="2 4" />
+          <CartesianGrid {...CHART_GRID} />
           <XAxis
             type="number"
             dataKey="x"
@@ -225,10 +226,9 @@ export function FitChart({ points, view, atomsPerFormulaUnit: n, window, onWindo
             ticks={useLog ? logTicks(xDomain[0], xDomain[1]) : undefined}
             allowDataOverflow
             tickFormatter={fmt}
-            label={{ value: xLabel, position: "insideBottom", offset: -4, fill: "var(--color-ink-muted)", fontSize: 12 }}
+            label={xAxisTitle(xLabel)}
             height={40}
-            stroke="var(--color-line-strong)"
-            tick={{ fill: "var(--color-ink-muted)", fontSize: 12 }}
+            {...CHART_AXIS}
           />
           <YAxis
             type="number"
@@ -237,9 +237,8 @@ export function FitChart({ points, view, atomsPerFormulaUnit: n, window, onWindo
             domain={yDomain ?? ["auto", "auto"]}
             allowDataOverflow={yDomain !== undefined}
             tickFormatter={fmt}
-            label={{ value: yLabel, angle: -90, position: "insideLeft", offset: 10, fill: "var(--color-ink-muted)", fontSize: 12, style: { textAnchor: "middle" } }}
-            stroke="var(--color-line-strong)"
-            tick={{ fill: "var(--color-ink-muted)", fontSize: 12 }}
+            label={yAxisTitle(yLabel)}
+            {...CHART_AXIS}
           />
           <ReferenceArea x1={toX(window[0])} x2={toX(window[1])} fill="var(--color-ember-soft)" fillOpacity={0.55} ifOverflow="hidden" />
           {view === "reduced" ? (

@@ -1,5 +1,6 @@
 import { CartesianGrid, ReferenceLine, ResponsiveContainer, Scatter, ScatterChart, Tooltip, XAxis, YAxis } from "recharts";
 import type { ResidualPoint } from "@shared/schemas/fits";
+import { CHART_AXIS, CHART_GRID, xAxisTitle, yAxisTitle } from "@/components/ui/chart-style";
 import { decimateForDisplay, logTicks } from "../utils";
 
 const fmt = (v: number) => String(Number(v.toPrecision(3)));
@@ -23,7 +24,7 @@ export function ResidualPlot({ residuals, logT, height = 160 }: { residuals: rea
       <div style={{ height }} className="w-full" data-testid="residual-plot">
         <ResponsiveContainer width="100%" height="100%">
           <ScatterChart margin={{ top: 8, right: 20, bottom: 8, left: 8 }}>
-            <CartesianGrid stroke="var(--color-line)" strokeDasharray="2 4" />
+            <CartesianGrid {...CHART_GRID} />
             <XAxis
               type="number"
               dataKey="x"
@@ -32,9 +33,8 @@ export function ResidualPlot({ residuals, logT, height = 160 }: { residuals: rea
               ticks={logT ? logTicks(tLo * 0.95, tHi * 1.05) : undefined}
               tickFormatter={fmt}
               height={32}
-              stroke="var(--color-line-strong)"
-              tick={{ fill: "var(--color-ink-muted)", fontSize: 12 }}
-              label={{ value: "T (K)", position: "insideBottom", offset: -2, fill: "var(--color-ink-muted)", fontSize: 12 }}
+              {...CHART_AXIS}
+              label={xAxisTitle("T (K)", { offset: -2 })}
             />
             <YAxis
               type="number"
@@ -42,9 +42,8 @@ export function ResidualPlot({ residuals, logT, height = 160 }: { residuals: rea
               width={70}
               domain={[-limit, limit]}
               allowDataOverflow
-              stroke="var(--color-line-strong)"
-              tick={{ fill: "var(--color-ink-muted)", fontSize: 12 }}
-              label={{ value: "(C − fit)/σ", angle: -90, position: "insideLeft", offset: 10, fill: "var(--color-ink-muted)", fontSize: 12, style: { textAnchor: "middle" } }}
+              {...CHART_AXIS}
+              label={yAxisTitle("(C − fit)/σ")}
             />
             <ReferenceLine y={0} stroke="var(--color-ink-muted)" />
             <ReferenceLine y={2} stroke="var(--color-line-strong)" strokeDasharray="4 4" />

@@ -2,6 +2,7 @@ import { useState } from "react";
 import { CartesianGrid, Legend, Line, LineChart, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
 import type { ThermoTable } from "@shared/schemas/fits";
 import { buttonClasses } from "@/components/ui/button";
+import { CHART_AXIS, CHART_GRID } from "@/components/ui/chart-style";
 import { parseNumberField } from "../utils";
 
 const fmt = (v: number, d = 5) => String(Number(v.toPrecision(d)));
@@ -95,10 +96,10 @@ export function ThermoView({ table, csvUrl, at, onAtChange }: ThermoViewProps) {
         <div className="h-72" data-testid="thermo-chart">
           <ResponsiveContainer width="100%" height="100%">
             <LineChart data={rows.map((r) => ({ T: r.temperatureK, S: r.entropy, H: r.enthalpy / 1000 }))} margin={{ top: 12, right: 8, bottom: 8, left: 8 }}>
-              <CartesianGrid stroke="var(--color-line)" strokeDasharray="2 4" />
-              <XAxis type="number" dataKey="T" domain={[0, "auto"]} tickFormatter={(v) => fmt(v, 3)} stroke="var(--color-line-strong)" tick={{ fill: "var(--color-ink-muted)", fontSize: 12 }} />
-              <YAxis yAxisId="S" width={56} stroke="var(--color-series-1)" tick={{ fill: "var(--color-ink-muted)", fontSize: 12 }} tickFormatter={(v) => fmt(v, 3)} />
-              <YAxis yAxisId="H" orientation="right" width={56} stroke="var(--color-series-2)" tick={{ fill: "var(--color-ink-muted)", fontSize: 12 }} tickFormatter={(v) => fmt(v, 3)} />
+              <CartesianGrid {...CHART_GRID} />
+              <XAxis type="number" dataKey="T" domain={[0, "auto"]} tickFormatter={(v) => fmt(v, 3)} {...CHART_AXIS} />
+              <YAxis yAxisId="S" width={56} {...CHART_AXIS} stroke="var(--color-series-1)" tickFormatter={(v) => fmt(v, 3)} />
+              <YAxis yAxisId="H" orientation="right" width={56} {...CHART_AXIS} stroke="var(--color-series-2)" tickFormatter={(v) => fmt(v, 3)} />
               <Line yAxisId="S" dataKey="S" name="S (J/(mol·K))" stroke="var(--color-series-1)" dot={{ r: 2 }} isAnimationActive={false} />
               <Line yAxisId="H" dataKey="H" name="H − H(0) (kJ/mol)" stroke="var(--color-series-2)" strokeDasharray="6 3" dot={{ r: 2 }} isAnimationActive={false} />
               <Legend wrapperStyle={{ fontSize: 12 }} />

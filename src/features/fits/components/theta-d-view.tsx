@@ -1,6 +1,7 @@
 import { CartesianGrid, ReferenceArea, ReferenceLine, ResponsiveContainer, Scatter, ScatterChart, Tooltip, XAxis, YAxis } from "recharts";
 import type { ThetaDCurve } from "@shared/schemas/fits";
 import { MeasuredValue } from "@/components/ui/measured-value";
+import { CHART_AXIS, CHART_GRID, xAxisTitle, yAxisTitle } from "@/components/ui/chart-style";
 import { decimateForDisplay, logTicks } from "../utils";
 
 const fmt = (v: number) => String(Number(v.toPrecision(4)));
@@ -28,7 +29,7 @@ export function ThetaDView({ curve, logT }: { curve: ThetaDCurve; logT?: boolean
       <div className="h-72 w-full" data-testid="theta-d-chart">
         <ResponsiveContainer width="100%" height="100%">
           <ScatterChart margin={{ top: 12, right: 20, bottom: 8, left: 8 }}>
-            <CartesianGrid stroke="var(--color-line)" strokeDasharray="2 4" />
+            <CartesianGrid {...CHART_GRID} />
             <XAxis
               type="number"
               dataKey="x"
@@ -37,9 +38,8 @@ export function ThetaDView({ curve, logT }: { curve: ThetaDCurve; logT?: boolean
               ticks={logT ? logTicks(tLo, tHi) : undefined}
               tickFormatter={fmt}
               height={36}
-              stroke="var(--color-line-strong)"
-              tick={{ fill: "var(--color-ink-muted)", fontSize: 12 }}
-              label={{ value: "T (K)", position: "insideBottom", offset: -2, fill: "var(--color-ink-muted)", fontSize: 12 }}
+              {...CHART_AXIS}
+              label={xAxisTitle("T (K)", { offset: -2 })}
             />
             <YAxis
               type="number"
@@ -48,9 +48,8 @@ export function ThetaDView({ curve, logT }: { curve: ThetaDCurve; logT?: boolean
               domain={[floor, Number.isFinite(hi) ? hi + pad : 100]}
               allowDataOverflow
               tickFormatter={fmt}
-              stroke="var(--color-line-strong)"
-              tick={{ fill: "var(--color-ink-muted)", fontSize: 12 }}
-              label={{ value: "θ_D(T) (K)", angle: -90, position: "insideLeft", offset: 10, fill: "var(--color-ink-muted)", fontSize: 12, style: { textAnchor: "middle" } }}
+              {...CHART_AXIS}
+              label={yAxisTitle("θ_D(T) (K)")}
             />
             {strip.length > 0 ? <ReferenceArea y1={floor} y2={floor + pad * 0.8} fill="var(--color-danger-soft)" fillOpacity={0.8} /> : null}
             {fitted !== undefined ? (

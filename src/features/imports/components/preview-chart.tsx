@@ -3,6 +3,7 @@ import { CartesianGrid, ComposedChart, ReferenceLine, ResponsiveContainer, Scatt
 import type { ReducedRun } from "@shared/schemas/ingest";
 import { seriesColor } from "@/lib/series-palette";
 import { useSettings } from "@/lib/settings";
+import { CHART_GRID, chartAxis, xAxisTitle, yAxisTitle } from "@/components/ui/chart-style";
 import { formatField } from "../utils";
 
 // R in J/(mol·K), CODATA 2018 (exact from k_B and N_A): only to draw the Dulong–Petit line 3nR.
@@ -36,9 +37,9 @@ export const PreviewChart = memo(function PreviewChart({ runs, atomsPerFormulaUn
       <div className="h-64 w-full" role="img" aria-label={`Preview of ${runs.length} run(s), heat capacity in ${unit} against temperature`}>
         <ResponsiveContainer width="100%" height="100%">
           <ComposedChart margin={{ top: 8, right: 16, bottom: 8, left: 8 }}>
-            <CartesianGrid stroke="var(--color-line)" strokeDasharray="2 4" />
-            <XAxis type="number" dataKey="x" scale={logT ? "log" : "linear"} domain={["auto", "auto"]} allowDataOverflow tickFormatter={tick} stroke="var(--color-line-strong)" tick={{ fill: "var(--color-ink-muted)", fontSize: 11 }} label={{ value: "T (K)", position: "insideBottom", offset: -4, fontSize: 11, fill: "var(--color-ink-muted)" }} height={36} />
-            <YAxis type="number" dataKey="y" width={64} domain={["auto", "auto"]} tickFormatter={tick} stroke="var(--color-line-strong)" tick={{ fill: "var(--color-ink-muted)", fontSize: 11 }} label={{ value: unit, angle: -90, position: "insideLeft", offset: 10, fontSize: 11, fill: "var(--color-ink-muted)", style: { textAnchor: "middle" } }} />
+            <CartesianGrid {...CHART_GRID} />
+            <XAxis type="number" dataKey="x" scale={logT ? "log" : "linear"} domain={["auto", "auto"]} allowDataOverflow tickFormatter={tick} {...chartAxis(11)} label={xAxisTitle("T (K)", { fontSize: 11 })} height={36} />
+            <YAxis type="number" dataKey="y" width={64} domain={["auto", "auto"]} tickFormatter={tick} {...chartAxis(11)} label={yAxisTitle(unit, { fontSize: 11 })} />
             {atomsPerFormulaUnit ? (
               <ReferenceLine y={3 * atomsPerFormulaUnit * R} stroke="var(--color-frost)" strokeDasharray="6 4" ifOverflow="extendDomain" label={{ value: "3nR", position: "insideTopLeft", fontSize: 11, fill: "var(--color-frost-ink)" }} />
             ) : null}

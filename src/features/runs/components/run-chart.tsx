@@ -11,6 +11,7 @@ import {
   YAxis,
 } from "recharts";
 import type { RunPoint } from "@shared/schemas/runs";
+import { CHART_AXIS, CHART_GRID, xAxisTitle, yAxisTitle } from "@/components/ui/chart-style";
 import { decimateForDisplay, formatAxisNumber, plotPoints, type PlottedPoint, type RunView } from "../utils";
 
 interface RunChartProps {
@@ -60,7 +61,7 @@ export const RunChart = memo(function RunChart({ points, view, atomsPerFormulaUn
       <div style={{ height }} className="w-full" role="img" aria-label={`${labels.y} against ${labels.x}: ${kept.length} points, ${masked.length} masked`}>
         <ResponsiveContainer width="100%" height="100%">
           <ComposedChart margin={{ top: 12, right: 20, bottom: 8, left: 8 }}>
-            <CartesianGrid stroke="var(--color-line)" strokeDasharray="2 4" />
+            <CartesianGrid {...CHART_GRID} />
             <XAxis
               type="number"
               dataKey="x"
@@ -68,10 +69,9 @@ export const RunChart = memo(function RunChart({ points, view, atomsPerFormulaUn
               domain={useLogX ? ["auto", "auto"] : [0, "auto"]}
               allowDataOverflow={useLogX}
               tickFormatter={formatAxisNumber}
-              label={{ value: labels.x, position: "insideBottom", offset: -4, fill: "var(--color-ink-muted)", fontSize: 12 }}
+              label={xAxisTitle(labels.x)}
               height={40}
-              stroke="var(--color-line-strong)"
-              tick={{ fill: "var(--color-ink-muted)", fontSize: 12 }}
+              {...CHART_AXIS}
             />
             <YAxis
               type="number"
@@ -81,9 +81,8 @@ export const RunChart = memo(function RunChart({ points, view, atomsPerFormulaUn
               domain={["auto", "auto"]}
               allowDataOverflow={useLogY}
               tickFormatter={formatAxisNumber}
-              label={{ value: labels.y, angle: -90, position: "insideLeft", offset: 10, fill: "var(--color-ink-muted)", fontSize: 12, style: { textAnchor: "middle" } }}
-              stroke="var(--color-line-strong)"
-              tick={{ fill: "var(--color-ink-muted)", fontSize: 12 }}
+              label={yAxisTitle(labels.y)}
+              {...CHART_AXIS}
             />
             {view === "reduced" ? (
               <ReferenceLine
