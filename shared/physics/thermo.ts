@@ -43,24 +43,8 @@ export const DEFAULT_TABLE_TEMPERATURES: readonly number[] = [
  * Tricomi's start values (converges to full double precision in a few steps; A&S 25.4.29 for the rule).
  */
 function gaussLegendre(n: number): { nodes: number[]; weights: number[] } {
-  const nodes: number[] = [];
-  const weights: number[] = [];
-  for (let i = 1; i <= n; i++) {
-    let x = Math.cos((Math.PI * (i - 0.25)) / (n + 0.5));
-    let dp = 0;
-    for (let iter = 0; iter < 100; iter++) {
-      let p0 = 1;
-      let p1 = x;
-      for (let k = 2; k <= n; k++) {
-        const p2 = ((2 * k - 1) * x * p1 - (k - 1) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-      }
-      dp = (n * (x * p1 - p0)) / (x * x - 1);
-      const dx = p1 / dp;
-      x -= dx;
-      if (Math.abs(dx) < 1e-17) break;
-    }
+  // P_n(x) and P_{n−1}(x) by the three-term recurrence, and P_n'(x) from them.
+  const legendre = (x: number): { p: number; dp: number } => {
     let p0 = 1;
     let p1 = x;
     for (let k = 2; k <= n; k++) {
@@ -68,7 +52,19 @@ function gaussLegendre(n: number): { nodes: number[]; weights: number[] } {
       p0 = p1;
       p1 = p2;
     }
-    dp = (n * (x * p1 - p0)) / (x * x - 1);
+    return { p: p1, dp: (n * (x * p1 - p0)) / (x * x - 1) };
+  };
+  const nodes: number[] = [];
+  const weights: number[] = [];
+  for (let i = 1; i <= n; i++) {
+    let x = Math.cos((Math.PI * (i - 0.25)) / (n + 0.5));
+    for (let iter = 0; iter < 100; iter++) {
+      const { p, dp } = legendre(x);
+      const dx = p / dp;
+      x -= dx;
+      if (Math.abs(dx) < 1e-17) break;
+    }
+    const { dp } = legendre(x);
     nodes.push(x);
     weights.push(2 / ((1 - x * x) * dp * dp));
   }
