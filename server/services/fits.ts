@@ -29,6 +29,7 @@ import { audit } from "./audit";
 import { buildComposite } from "@shared/physics/composite";
 import type { CompositeModel } from "@shared/physics/model-types";
 import { fitHeatCapacity, type HeatCapacityFit } from "@shared/fitting/fit-model";
+import { massSystematic } from "@shared/fitting/mass-systematic";
 import { thermoTable } from "@shared/physics/thermo";
 import { thetaDFromBeta, thetaDFromPoint } from "@shared/physics/theta-d";
 import { monotoneInterpolator } from "@shared/numerics/monotone-interpolation";
@@ -327,7 +328,8 @@ const TOTAL_HEAT_CAPACITY_UNITS = new Set(["J/K", "mJ/K", "uJ/K"]);
 function massForSystematic(run: RunForFit, mapping: unknown): { massMg: number; massSigmaMg: number } | null {
   const unit = (mapping as { units?: { heatCapacity?: string } } | null)?.units?.heatCapacity;
   if (!unit || !TOTAL_HEAT_CAPACITY_UNITS.has(unit)) return null;
-  if (run.massMg === null || !(run.massMg > 0) || !(run.massSigmaMg > 0)) return null;
+  // σ_m ≥ m leaves no mass to refit at m − σ_m: no systematic then.
+  if (run.massMg === null || !(run.massMg > 0) || !(run.massSigmaMg > 0) || !(run.massSigmaMg < run.massMg)) return null;
   return { massMg: run.massMg, massSigmaMg: run.massSigmaMg };
 }
 
@@ -440,7 +442,7 @@ function runEngine(
     throw err;
   }
   const mass = withMass ? massForSystematic(run, run.mapping) : null;
-  const massErrors = mass ? massSystematic(input, def, n, window, mass, fit) : fit.parameters.map(() => null);
+  const massErrors = mass ? massErrorsOf(input, def, n, window, mass, fit) : fit.parameters.map(() => null);
   const elapsedMs = performance.now() - started;
 
   const usedPoints: FitInputPoint[] = [];
@@ -521,11 +523,10 @@ function runEngine(
 const capitalise = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
 
 /**
- * Systematic uncertainty of each parameter from the sample mass: molar Cp scales as 1/m, so the data
- * (and σ) are rescaled to masses m + σ_m and m − σ_m and refitted from the nominal solution;
- * the systematic part is half the spread, |p(m+σ_m) − p(m−σ_m)|/2 (fixed parameters: null).
+ * Systematic uncertainty of each parameter from the sample mass, by the shared refit at m ± σ_m
+ * (shared/fitting/mass-systematic.ts), started from the nominal solution; fixed parameters get null.
  */
-function massSystematic(
+function massErrorsOf(
   input: EngineInput,
   def: ModelDefinitionInput,
   n: number,
@@ -533,21 +534,14 @@ function massSystematic(
   mass: { massMg: number; massSigmaMg: number },
   nominal: HeatCapacityFit,
 ): (number | null)[] {
-  const startAtNominal: ModelDefinitionInput = {
-    ...def,
-    parameters: Object.fromEntries(nominal.parameters.map((p) => [p.name, { ...(def.parameters?.[p.name] ?? {}), value: p.value }])),
-  };
-  const refit = (m: number) => {
-    const k = mass.massMg / m;
-    return fitHeatCapacity(
-      { temperatureK: input.temperatureK, cp: input.cp.map((c) => c * k), sigma: input.sigma?.map((s) => s * k) ?? null, masked: input.masked },
-      startAtNominal,
-      { atomsPerFormulaUnit: n, windowK: [window[0], window[1]], maxStarts: 1 },
-    );
-  };
-  const up = refit(mass.massMg + mass.massSigmaMg);
-  const down = refit(mass.massMg - mass.massSigmaMg);
-  return nominal.parameters.map((p, j) => (p.fixed ? null : Math.abs(up.params[j] - down.params[j]) / 2));
+  const { systematic } = massSystematic(
+    { temperatureK: input.temperatureK, cp: input.cp, sigma: input.sigma, masked: input.masked },
+    def,
+    { atomsPerFormulaUnit: n, windowK: [window[0], window[1]], maxStarts: 1 },
+    { massMg: mass.massMg, sigmaMassMg: mass.massSigmaMg },
+    nominal,
+  );
+  return nominal.parameters.map((p, j) => (p.fixed ? null : systematic[j]));
 }
 
 /* ------------------------------------------------------------------------------------------------
