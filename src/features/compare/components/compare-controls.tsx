@@ -1,4 +1,4 @@
-import { useId } from "react";
+import { useId, type ReactNode } from "react";
 import type { AvailableParameter, Comparison } from "@shared/schemas/compare";
 import type { Batch, Sample } from "@shared/schemas/samples";
 import { SelectField } from "@/components/ui/field";
@@ -18,6 +18,44 @@ interface CompareControlsProps {
   savedId: string | null;
   onLoadSaved: (c: Comparison | null) => void;
   available: readonly AvailableParameter[];
+}
+
+interface TickListProps {
+  legend: string;
+  /** Said instead of the list when there is nothing to tick. */
+  empty: string;
+  /** Height cap of the scrolling list. */
+  listClassName: string;
+  items: { id: string; name: ReactNode; detail: string }[];
+  ticked: readonly string[];
+  onToggle: (id: string) => void;
+  /** Shown under the list. */
+  children?: ReactNode;
+}
+
+/** A fieldset of checkboxes, one per item, with a name and a muted detail. */
+function TickList({ legend, empty, listClassName, items, ticked, onToggle, children }: TickListProps) {
+  return (
+    <fieldset className="space-y-1.5">
+      <legend className="text-sm font-medium text-ink">{legend}</legend>
+      {items.length === 0 ? (
+        <p className="text-xs text-ink-muted">{empty}</p>
+      ) : (
+        <ul className={`${listClassName} space-y-1 overflow-y-auto text-sm text-ink`}>
+          {items.map((item) => (
+            <li key={item.id}>
+              <label className="inline-flex items-center gap-2">
+                <input type="checkbox" checked={ticked.includes(item.id)} onChange={() => onToggle(item.id)} />
+                {item.name}
+                <span className="text-xs text-ink-muted">{item.detail}</span>
+              </label>
+            </li>
+          ))}
+        </ul>
+      )}
+      {children}
+    </fieldset>
+  );
 }
 
 function toggle(list: readonly string[], id: string): string[] {
@@ -76,58 +114,34 @@ export function CompareControls({ selection, onChange, batches, samples, saved, 
           ))}
         </div>
       </fieldset>
-      <fieldset className="space-y-1.5">
-        <legend className="text-sm font-medium text-ink">Batches</legend>
-        {batches.length === 0 ? (
-          <p className="text-xs text-ink-muted">No batches in this lab yet.</p>
-        ) : (
-          <ul className="max-h-44 space-y-1 overflow-y-auto text-sm text-ink">
-            {batches.map((b) => (
-              <li key={b.id}>
-                <label className="inline-flex items-center gap-2">
-                  <input
-                    type="checkbox"
-                    checked={selection.batchIds.includes(b.id)}
-                    onChange={() => onChange({ ...selection, batchIds: toggle(selection.batchIds, b.id) })}
-                  />
-                  <span className="font-mono">{b.code}</span>
-                  <span className="text-xs text-ink-muted">
-                    {b.sampleCount} sample{b.sampleCount === 1 ? "" : "s"}
-                  </span>
-                </label>
-              </li>
-            ))}
-          </ul>
-        )}
-      </fieldset>
-      <fieldset className="space-y-1.5">
-        <legend className="text-sm font-medium text-ink">Samples</legend>
-        {samples.length === 0 ? (
-          <p className="text-xs text-ink-muted">No samples in this lab yet.</p>
-        ) : (
-          <ul className="max-h-56 space-y-1 overflow-y-auto text-sm text-ink">
-            {samples.map((s) => (
-              <li key={s.id}>
-                <label className="inline-flex items-center gap-2">
-                  <input
-                    type="checkbox"
-                    checked={selection.sampleIds.includes(s.id)}
-                    onChange={() => onChange({ ...selection, sampleIds: toggle(selection.sampleIds, s.id) })}
-                  />
-                  <span>{s.label}</span>
-                  <span className="text-xs text-ink-muted">
-                    {s.batchId ? batchCode.get(s.batchId) ?? s.batchCode : "no batch"}
-                    {s.compositionX != null ? ` · ${s.compositionName || "x"} = ${s.compositionX}` : ""}
-                  </span>
-                </label>
-              </li>
-            ))}
-          </ul>
-        )}
+      <TickList
+        legend="Batches"
+        empty="No batches in this lab yet."
+        listClassName="max-h-44"
+        items={batches.map((b) => ({
+          id: b.id,
+          name: <span className="font-mono">{b.code}</span>,
+          detail: `${b.sampleCount} sample${b.sampleCount === 1 ? "" : "s"}`,
+        }))}
+        ticked={selection.batchIds}
+        onToggle={(id) => onChange({ ...selection, batchIds: toggle(selection.batchIds, id) })}
+      />
+      <TickList
+        legend="Samples"
+        empty="No samples in this lab yet."
+        listClassName="max-h-56"
+        items={samples.map((s) => ({
+          id: s.id,
+          name: <span>{s.label}</span>,
+          detail: `${s.batchId ? (batchCode.get(s.batchId) ?? s.batchCode) : "no batch"}${s.compositionX != null ? ` · ${s.compositionName || "x"} = ${s.compositionX}` : ""}`,
+        }))}
+        ticked={selection.sampleIds}
+        onToggle={(id) => onChange({ ...selection, sampleIds: toggle(selection.sampleIds, id) })}
+      >
         <p className="text-xs text-ink-muted">
           Nothing ticked compares every approved fit of the lab. Ticked batches and samples add up.
         </p>
-      </fieldset>
+      </TickList>
     </div>
   );
 }
